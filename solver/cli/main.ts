@@ -1,0 +1,182 @@
+import { Command, CommanderError, Option } from 'commander';
+import { mkdirSync } from 'node:fs';
+import { join } from 'node:path';
+import { SHAPES, DEFAULT_SHAPE_VERTICES } from '../../meshes/shapes/index.ts';
+import { meshStatistics } from '../mesh/meshStatistics.ts';
+import { saveMeshFile } from '../io/meshFiles.ts';
+import { colorizeField } from '../io/colormap.ts';
+import { laplaceBeltramiEigenpairs, type MassKind } from '../fem/laplaceBeltramiEigenpairs.ts';
+import { meshArea } from '../mesh/triangleAreas.ts';
+import { resolveMesh, requireFemReady, parseCount, type MeshSourceOptions } from './meshSource.ts';
+import { UsageError } from './UsageError.ts';
+import { runDemo } from './demo.ts';
+import { VERSION } from './version.ts';
+
+const collect = (value: string, previous: string[] = []) => previous.concat([value]);
+
+function addMeshOptions(cmd: Command): Command {
+  return cmd
+    .option('-p, --param <name=value>', 'shape parameter (repeat for several); see `placode shapes`', collect)
+    .option('--vertices <n>', `target vertex count of a built-in shape (default ${DEFAULT_SHAPE_VERTICES})`)
+    .option('--weld [tolerance]', 'merge vertices closer than tolerance (default: identical ones)')
+    .option('--fix-orientation', 'make triangle orientation consistent (outward on closed surfaces)')
+    .option('--drop-unreferenced', 'remove vertices no triangle uses')
+    .option('--refine <n>', '1-to-4 midpoint refinements to apply')
+    .option('--loop <n>', 'Loop subdivision steps to apply (smooths the surface)');
+}
+
+function log(quiet: boolean | undefined, text: string) {
+  if (!quiet) process.stderr.write(text + '\n');
+}
+
+/** Run the command line; returns the exit code. Never throws. */
+export async function main(argv: string[]): Promise<number> {
+  const program = new Command('placode')
+    .description('Turing-type reaction–diffusion on tissue-shaped surfaces: meshes, surface finite elements, eigenmodes')
+    .version(VERSION)
+    .exitOverride()
+    .configureOutput({ writeErr: (s) => process.stderr.write(s) })
+    .showHelpAfterError('(run with --help for usage)');
+
+  program
+    .command('shapes')
+    .description('list the built-in shapes and their parameters')
+    .option('--json', 'print as JSON')
+    .action((o: { json?: boolean }) => {
+      if (o.json) {
+        process.stdout.write(JSON.stringify(SHAPES, (k, v) => (k === 'build' || k === 'check' ? undefined : v), 2) + '\n');
+        return;
+      }
+      for (const s of Object.values(SHAPES)) {
+        process.stdout.write(`${s.name}  (${s.closed ? 'closed' : 'open'}) — ${s.description}\n`);
+        for (const [k, p] of Object.entries(s.parameters)) {
+          process.stdout.write(`    ${k.padEnd(16)} default ${String(p.default).padEnd(6)} ${p.description}\n`);
+        }
+      }
+    });
+
+  addMeshOptions(
+    program
+      .command('mesh')
+      .argument('<shape|file>', 'built-in shape name or mesh file (.ply .obj .stl .off)')
+      .description('build or load a mesh, check it, print its statistics, optionally write it out'),
+  )
+    .option('-o, --out <file>', 'write the mesh (.ply .obj .stl .off by extension)')
+    .option('--ascii', 'write PLY as ASCII instead of binary')
+    .option('--force', 'overwrite an existing output file')
+    .option('--json', 'print the statistics as JSON')
+    .action((spec: string, o: MeshSourceOptions & { out?: string; ascii?: boolean; force?: boolean; json?: boolean }) => {
+      const r = resolveMesh(spec, o);
+      const stats = meshStatistics(r.mesh);
+      if (o.out) {
+        if (stats.errors.length > 0) throw new UsageError(`not writing ${o.out}: the mesh has errors:\n  - ${stats.errors.join('\n  - ')}`);
+        saveMeshFile(o.out, r.mesh, { encoding: o.ascii ? 'ascii' : 'binary', force: o.force, properties: r.vertexData, comments: [`placode ${VERSION}`] });
+      }
+      if (o.json) {
+        process.stdout.write(JSON.stringify(stats, null, 2) + '\n');
+      } else {
+        const e = stats.edgeLength;
+        process.stdout.write(
+          `${spec}: ${stats.vertices} vertices, ${stats.triangles} triangles\n` +
+            `  area ${fmt(stats.area)}, genus ${stats.genus}, ${stats.boundaryLoops} boundary loop(s), ${stats.components} component(s), Euler characteristic ${stats.eulerCharacteristic}\n` +
+            `  edge length min ${fmt(e.min)} mean ${fmt(e.mean)} max ${fmt(e.max)}\n`,
+        );
+        for (const n of r.notes) process.stdout.write(`  note: ${n}\n`);
+        for (const w of stats.warnings) process.stdout.write(`  warning: ${w}\n`);
+        for (const w of stats.errors) process.stdout.write(`  error: ${w}\n`);
+        if (o.out) process.stdout.write(`  wrote ${o.out}\n`);
+      }
+      if (stats.errors.length > 0) process.exitCode = 1;
+    });
+
+  addMeshOptions(
+    program
+      .command('modes')
+      .argument('<shape|file>', 'built-in shape name or mesh file')
+      .description('lowest Laplace–Beltrami eigenvalues (K φ = λ M φ) and, on request, painted eigenmodes'),
+  )
+    .option('-n, --count <n>', 'number of eigenpairs', '20')
+    .addOption(new Option('--mass <kind>', 'mass matrix').choices(['consistent', 'lumped']).default('consistent'))
+    .option('--paint <indices>', 'comma-separated mode indices (0 = constant mode) to write as painted PLY files')
+    .option('--out-dir <dir>', 'directory for painted modes', 'modes')
+    .option('--cluster-tol <rel>', 'relative gap under which eigenvalues count as one multiple eigenvalue', '0.01')
+    .option('--force', 'overwrite existing files')
+    .option('--json', 'print {"eigenvalues": [...], "area": A, "vertices": n, ...} as JSON')
+    .option('-q, --quiet', 'no progress messages')
+    .action((spec: string, o: MeshSourceOptions & { count: string; mass: MassKind; paint?: string; outDir: string; clusterTol: string; force?: boolean; json?: boolean; quiet?: boolean }) => {
+      const count = parseCount(o.count, '--count', 1)!;
+      const clusterTolerance = Number(o.clusterTol);
+      if (!(clusterTolerance >= 0)) throw new UsageError(`--cluster-tol must be a number ≥ 0, got "${o.clusterTol}"`);
+      const paint = o.paint ? o.paint.split(',').map((s) => parseCount(s.trim(), '--paint index')!) : [];
+      for (const k of paint) if (k >= count) throw new UsageError(`--paint index ${k} is not below --count ${count}`);
+      const r = resolveMesh(spec, o);
+      const warnings = requireFemReady(r.mesh, spec);
+      for (const w of warnings) log(o.quiet, `warning: ${w}`);
+      const n = r.mesh.positions.length / 3;
+      log(o.quiet, `computing ${count} eigenpairs on ${n} vertices (${o.mass} mass)…`);
+      const t0 = performance.now();
+      let last = -1;
+      const eig = laplaceBeltramiEigenpairs(r.mesh, {
+        count, mass: o.mass, clusterTolerance,
+        onProgress: (done, wanted) => {
+          if (done !== last) { last = done; log(o.quiet, `  ${done}/${wanted} converged`); }
+        },
+      });
+      const seconds = (performance.now() - t0) / 1000;
+      const area = meshArea(r.mesh);
+      const written: string[] = [];
+      if (paint.length > 0) {
+        mkdirSync(o.outDir, { recursive: true });
+        for (const k of paint) {
+          const phi = eig.vectors[k];
+          let amax = 0;
+          for (let i = 0; i < n; i++) amax = Math.max(amax, Math.abs(phi[i]));
+          const colors = colorizeField(phi, 'diverging', [-amax || -1, amax || 1]);
+          const file = join(o.outDir, `mode-${String(k).padStart(3, '0')}.ply`);
+          saveMeshFile(file, r.mesh, { colors, properties: { mode: phi }, force: o.force, comments: [`eigenvalue ${eig.values[k]}`] });
+          written.push(file);
+        }
+      }
+      if (o.json) {
+        process.stdout.write(JSON.stringify({
+          eigenvalues: Array.from(eig.values), area, vertices: n,
+          multiplicities: eig.clusters.map((c) => ({ eigenvalue: c.mean, multiplicity: c.size, first: c.first })),
+          mass: o.mass, method: eig.method, seconds, files: written,
+        }, null, 2) + '\n');
+      } else {
+        process.stdout.write(`${spec}: ${n} vertices, area ${fmt(area)}, ${o.mass} mass, ${eig.method} solver, ${seconds.toFixed(2)} s\n`);
+        process.stdout.write('  index  eigenvalue      multiplicity\n');
+        for (const c of eig.clusters) {
+          process.stdout.write(`  ${String(c.first).padStart(5)}  ${fmt(c.mean).padEnd(14)}  ${c.size}\n`);
+        }
+        for (const f of written) process.stdout.write(`  wrote ${f}\n`);
+      }
+    });
+
+  program
+    .command('demo')
+    .description('the built-in demonstration: a limb-bud paddle, its statistics and its first eigenmodes')
+    .option('--out-dir <dir>', 'where to write the outputs', 'placode-demo')
+    .action(async (o: { outDir: string }) => {
+      await runDemo(o.outDir);
+    });
+
+  try {
+    await program.parseAsync(argv, { from: 'user' });
+    return typeof process.exitCode === 'number' ? process.exitCode : 0;
+  } catch (e) {
+    if (e instanceof CommanderError) {
+      return e.exitCode === 0 || e.code === 'commander.helpDisplayed' || e.code === 'commander.version' ? 0 : 2;
+    }
+    const err = e as Error;
+    const cmd = argv.find((a) => !a.startsWith('-')) ?? '';
+    process.stderr.write(`placode${cmd ? ' ' + cmd : ''}: ${err.message}\n`);
+    if (process.env.PLACODE_DEBUG) process.stderr.write(`${err.stack}\n`);
+    return e instanceof UsageError ? 2 : 1;
+  }
+}
+
+function fmt(x: number): string {
+  if (!Number.isFinite(x)) return String(x);
+  return Math.abs(x) >= 1e4 || (Math.abs(x) < 1e-3 && x !== 0) ? x.toExponential(4) : x.toPrecision(6);
+}
