@@ -1,0 +1,63 @@
+/**
+ * `npm run bench`: timings of the surface-FEM foundation on geodesic spheres of
+ * ~10k / 40k / 160k vertices, and the largest shapes the generators build.
+ * Set BENCH_SIZES="32 64" (icosphere frequencies) to run a subset; BENCH_EIGEN=0
+ * skips the eigen-solves. Machines are noisy: compare ratios within one run.
+ */
+import { icosphere } from '../../meshes/shapes/icosphere.ts';
+import { SHAPES, buildShape } from '../../meshes/shapes/index.ts';
+import { meshTopology } from '../../solver/mesh/meshTopology.ts';
+import { cotanStiffness } from '../../solver/fem/cotanStiffness.ts';
+import { consistentMass } from '../../solver/fem/consistentMass.ts';
+import { lumpedMass } from '../../solver/fem/lumpedMass.ts';
+import { vertexSparsityPattern } from '../../solver/fem/vertexSparsityPattern.ts';
+import { laplaceBeltramiEigenpairs } from '../../solver/fem/laplaceBeltramiEigenpairs.ts';
+
+const sizes = (process.env.BENCH_SIZES ?? '32 64 128').split(/\s+/).filter(Boolean).map(Number);
+const eigen = process.env.BENCH_EIGEN !== '0';
+const ms = (t: number) => `${t.toFixed(0)} ms`;
+
+function best(f: () => void, reps = 3): number {
+  let b = Infinity;
+  for (let i = 0; i < reps; i++) {
+    const t0 = performance.now();
+    f();
+    b = Math.min(b, performance.now() - t0);
+  }
+  return b;
+}
+
+console.log('Surface FEM assembly and eigenpairs on unit geodesic spheres');
+console.log('| vertices | topology + pattern | K + M + lumped (reassembly) | 50 eigenpairs | nnz(L) |');
+console.log('|---:|---:|---:|---:|---:|');
+for (const nu of sizes) {
+  const mesh = icosphere(nu);
+  const n = mesh.positions.length / 3;
+  const t0 = performance.now();
+  meshTopology(mesh);
+  vertexSparsityPattern(mesh);
+  const tTopo = performance.now() - t0;
+  const K = cotanStiffness(mesh);
+  const M = consistentMass(mesh);
+  const L = lumpedMass(mesh);
+  const tAsm = best(() => { cotanStiffness(mesh, K); consistentMass(mesh, M); lumpedMass(mesh, L); });
+  let eig = '—', fill = '—';
+  if (eigen) {
+    const t1 = performance.now();
+    const r = laplaceBeltramiEigenpairs(mesh, { count: 50, method: 'sparse' });
+    eig = `${((performance.now() - t1) / 1000).toFixed(1)} s`;
+    fill = String(r.stats.factorNonZeros);
+  }
+  console.log(`| ${n} | ${ms(tTopo)} | ${ms(tAsm)} | ${eig} | ${fill} |`);
+}
+
+if (process.env.BENCH_SHAPES !== '0') {
+  console.log('\nShapes at a 200k-vertex target');
+  console.log('| shape | vertices | build |');
+  console.log('|---|---:|---:|');
+  for (const name of Object.keys(SHAPES)) {
+    const t0 = performance.now();
+    const { mesh } = buildShape({ shape: name, vertices: 200_000 });
+    console.log(`| ${name} | ${mesh.positions.length / 3} | ${ms(performance.now() - t0)} |`);
+  }
+}
