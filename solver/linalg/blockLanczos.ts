@@ -81,53 +81,82 @@ export function blockLanczos(op: SelfAdjointOperator, count: number, options: La
   const toInterleaved = (x: Float64Array, out: Float64Array) => {
     for (let k = 0; k < n; k++) for (let c = 0; c < b; c++) out[k * b + c] = x[c * n + k];
   };
-  /** h[i·b + c] = V[i]ᵀ z_c for i < upto (z column-major) */
-  const dots = (upto: number, z: Float64Array, h: Float64Array) => {
+  /** h[i·b + c] = V[i]ᵀ z_c for i < upto (z column-major); four basis vectors per sweep */
+  const dots = (upto: number, z: Float64Array, h: Float64Array, from = 0) => {
     h.fill(0, 0, upto * b);
     for (let k0 = 0; k0 < n; k0 += CHUNK) {
       const k1 = Math.min(n, k0 + CHUNK);
-      for (let i = 0; i < upto; i++) {
-        const v = V[i];
+      let i = 0;
+      for (; i + 3 < upto; i += 4) {
+        const v0 = V[from + i], v1 = V[from + i + 1], v2 = V[from + i + 2], v3 = V[from + i + 3];
         for (let c = 0; c < b; c++) {
           const off = c * n;
-          let s0 = 0, s1 = 0;
-          let k = k0;
-          for (; k + 1 < k1; k += 2) {
-            s0 += v[k] * z[off + k];
-            s1 += v[k + 1] * z[off + k + 1];
+          let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+          for (let k = k0; k < k1; k++) {
+            const zk = z[off + k];
+            s0 += v0[k] * zk;
+            s1 += v1[k] * zk;
+            s2 += v2[k] * zk;
+            s3 += v3[k] * zk;
           }
-          if (k < k1) s0 += v[k] * z[off + k];
-          h[i * b + c] += s0 + s1;
+          h[i * b + c] += s0;
+          h[(i + 1) * b + c] += s1;
+          h[(i + 2) * b + c] += s2;
+          h[(i + 3) * b + c] += s3;
+        }
+      }
+      for (; i < upto; i++) {
+        const v = V[from + i];
+        for (let c = 0; c < b; c++) {
+          const off = c * n;
+          let s0 = 0;
+          for (let k = k0; k < k1; k++) s0 += v[k] * z[off + k];
+          h[i * b + c] += s0;
         }
       }
     }
   };
-  /** y_c −= Σ_i V[i]·h[i·b + c] (y column-major) */
-  const subtract = (upto: number, h: Float64Array, y: Float64Array) => {
+  /** y_c −= Σ_i V[i]·h[i·b + c] (y column-major); four basis vectors per sweep */
+  const subtract = (upto: number, h: Float64Array, y: Float64Array, from = 0) => {
     for (let k0 = 0; k0 < n; k0 += CHUNK) {
       const k1 = Math.min(n, k0 + CHUNK);
-      for (let i = 0; i < upto; i++) {
-        const v = V[i];
+      let i = 0;
+      for (; i + 3 < upto; i += 4) {
+        const v0 = V[from + i], v1 = V[from + i + 1], v2 = V[from + i + 2], v3 = V[from + i + 3];
+        for (let c = 0; c < b; c++) {
+          const h0 = h[i * b + c], h1 = h[(i + 1) * b + c], h2 = h[(i + 2) * b + c], h3 = h[(i + 3) * b + c];
+          const off = c * n;
+          for (let k = k0; k < k1; k++) y[off + k] -= h0 * v0[k] + h1 * v1[k] + h2 * v2[k] + h3 * v3[k];
+        }
+      }
+      for (; i < upto; i++) {
+        const v = V[from + i];
         for (let c = 0; c < b; c++) {
           const hc = h[i * b + c];
-          if (hc === 0) continue;
           const off = c * n;
           for (let k = k0; k < k1; k++) y[off + k] -= hc * v[k];
         }
       }
     }
   };
-  /** Orthogonalise block y against V[0..upto) twice; coefficients into `h` (if given). */
-  const orthogonalise = (upto: number, y: Float64Array, h: Float64Array | null) => {
+  /**
+   * Orthogonalise block y against V[0..upto) twice (classical Gram–Schmidt),
+   * adding the coefficients into `h` (if given). With `localFrom`, the first pass
+   * only runs over V[localFrom..upto): in exact arithmetic Op·v of a Lanczos block
+   * has no component on older vectors, so the full second pass only removes
+   * round-off (the three-term recurrence plus full reorthogonalisation).
+   */
+  const orthogonalise = (upto: number, y: Float64Array, h: Float64Array | null, localFrom = 0) => {
     if (h) h.fill(0, 0, upto * b);
     for (let pass = 0; pass < 2; pass++) {
+      const from = pass === 0 ? localFrom : 0;
       op.applyInner(y, b, Z);
       toColumns(Z, Zc);
-      dots(upto, Zc, H2);
+      dots(upto - from, Zc, H2, from);
       toColumns(y, Yc);
-      subtract(upto, H2, Yc);
+      subtract(upto - from, H2, Yc, from);
       toInterleaved(Yc, y);
-      if (h) for (let q = 0; q < upto * b; q++) h[q] += H2[q];
+      if (h) for (let q = 0; q < (upto - from) * b; q++) h[from * b + q] += H2[q];
     }
   };
   /**
@@ -213,6 +242,7 @@ export function blockLanczos(op: SelfAdjointOperator, count: number, options: La
   appendBlock(Y);
   let processed = 0;
   let restarts = 0;
+  let restartedAt = 0;
 
   for (;;) {
     while (processed < m) {
@@ -221,7 +251,8 @@ export function blockLanczos(op: SelfAdjointOperator, count: number, options: La
       op.apply(X, b, Y);
       applications += b;
       const upto = V.length; // = c0 + b
-      orthogonalise(upto, Y, H);
+      // right after a restart the block couples to every kept Ritz vector
+      orthogonalise(upto, Y, H, c0 === restartedAt ? 0 : Math.max(0, c0 - b));
       for (let c = 0; c < b; c++) for (let i = 0; i <= c0 + c; i++) T[i + (c0 + c) * mm] = H[i * b + c];
       orthonormalise(upto, Y, R);
       appendBlock(Y);
@@ -279,6 +310,7 @@ export function blockLanczos(op: SelfAdjointOperator, count: number, options: La
     T.fill(0);
     for (let k = 0; k < keep; k++) T[k + k * mm] = values[k];
     processed = keep;
+    restartedAt = keep;
     restarts++;
   }
 }
@@ -294,17 +326,25 @@ function mulUpper(a: Float64Array, bm: Float64Array, b: number, out: Float64Arra
     }
 }
 
-/** Columns Σ_i V[i]·S[i, k] for k < count. */
+/** Columns Σ_i V[i]·S[i, k] for k < count; four basis vectors per sweep. */
 function combine(V: Float64Array[], S: Float64Array, msize: number, count: number, n: number): Float64Array[] {
   const out: Float64Array[] = [];
   for (let k = 0; k < count; k++) out.push(new Float64Array(n));
   for (let k0 = 0; k0 < n; k0 += CHUNK) {
     const k1 = Math.min(n, k0 + CHUNK);
-    for (let i = 0; i < msize; i++) {
+    let i = 0;
+    for (; i + 3 < msize; i += 4) {
+      const v0 = V[i], v1 = V[i + 1], v2 = V[i + 2], v3 = V[i + 3];
+      for (let k = 0; k < count; k++) {
+        const s0 = S[i * msize + k], s1 = S[(i + 1) * msize + k], s2 = S[(i + 2) * msize + k], s3 = S[(i + 3) * msize + k];
+        const o = out[k];
+        for (let q = k0; q < k1; q++) o[q] += s0 * v0[q] + s1 * v1[q] + s2 * v2[q] + s3 * v3[q];
+      }
+    }
+    for (; i < msize; i++) {
       const v = V[i];
       for (let k = 0; k < count; k++) {
         const s = S[i * msize + k];
-        if (s === 0) continue;
         const o = out[k];
         for (let q = k0; q < k1; q++) o[q] += s * v[q];
       }
