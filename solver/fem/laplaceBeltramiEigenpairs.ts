@@ -1,5 +1,5 @@
 import type { Mesh } from '../mesh/Mesh.ts';
-import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
+import { csrAddDiagonal, csrCombine, type CsrMatrix } from '../linalg/CsrMatrix.ts';
 import { SparseCholesky } from '../linalg/SparseCholesky.ts';
 import { blockLanczos } from '../linalg/blockLanczos.ts';
 import { symmetricEigen } from '../linalg/symmetricEigen.ts';
@@ -82,13 +82,7 @@ export function laplaceBeltramiEigenpairs(mesh: Mesh, options: EigenpairOptions)
   else for (let i = 0; i < n; i++) area += Ml![i];
   const sigma = -1 / area;
   // A = K − σM on K's pattern (the consistent mass shares it)
-  const A: CsrMatrix = { ...K, values: K.values.slice() };
-  if (Mc) for (let p = 0; p < A.values.length; p++) A.values[p] -= sigma * Mc.values[p];
-  else {
-    for (let i = 0; i < n; i++) {
-      for (let p = K.rowOffsets[i]; p < K.rowOffsets[i + 1]; p++) if (K.columns[p] === i) A.values[p] -= sigma * Ml![i];
-    }
-  }
+  const A = Mc ? csrCombine(1, K, -sigma, Mc) : csrAddDiagonal(K, Ml!.map((m) => -sigma * m));
   const chol = new SparseCholesky(A);
   const rhs = new Float64Array(n * block);
   const work = new Float64Array(n * block);

@@ -40,7 +40,7 @@ export function csrEntry(a: CsrMatrix, i: number, j: number): number {
 
 /** αA + βB for two matrices with the same pattern (shares the pattern arrays). */
 export function csrCombine(alpha: number, a: CsrMatrix, beta: number, b: CsrMatrix, out?: CsrMatrix): CsrMatrix {
-  if (a.rowOffsets !== b.rowOffsets && a.columns.length !== b.columns.length) {
+  if (a.rowOffsets !== b.rowOffsets || a.columns !== b.columns) {
     throw new Error('csrCombine: the two matrices do not share a sparsity pattern');
   }
   const values = out?.values ?? new Float64Array(a.values.length);

@@ -137,8 +137,8 @@ export class SparseCholesky {
 
   /** Numeric factorisation for new values on the analysed pattern. */
   refactor(a: CsrMatrix): this {
-    if (a.rowOffsets.length !== this.rowOffsets.length || a.values.length !== this.cSlot.length * 2 - this.size) {
-      if (a.rows !== this.size) throw new Error(`SparseCholesky.refactor: expected a ${this.size}×${this.size} matrix, got ${a.rows}×${a.cols}`);
+    if (a.rows !== this.size || a.rowOffsets[a.rows] !== this.rowOffsets[this.size]) {
+      throw new Error(`SparseCholesky.refactor: expected the analysed ${this.size}×${this.size} pattern with ${this.rowOffsets[this.size]} entries, got ${a.rows}×${a.cols} with ${a.rowOffsets[a.rows]}`);
     }
     const n = this.size;
     const av = a.values;
