@@ -3,7 +3,7 @@ import { join, resolve } from 'node:path';
 import { buildShape } from '../../meshes/shapes/index.ts';
 import { meshStatistics } from '../mesh/meshStatistics.ts';
 import { saveMeshFile } from '../io/meshFiles.ts';
-import { colorizeField } from '../io/colormap.ts';
+import { saveModeFile } from './saveModeFile.ts';
 import { laplaceBeltramiEigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
 
 /**
@@ -31,11 +31,8 @@ export async function runDemo(outDir: string): Promise<void> {
   say('  unstable band contains λ can grow that mode first.');
   const files: string[] = [];
   for (let k = 1; k <= 6; k++) {
-    const phi = eig.vectors[k];
-    let amax = 0;
-    for (let i = 0; i < phi.length; i++) amax = Math.max(amax, Math.abs(phi[i]));
     const file = join(outDir, `mode-${String(k).padStart(3, '0')}.ply`);
-    saveMeshFile(file, mesh, { colors: colorizeField(phi, 'diverging', [-amax, amax]), properties: { mode: phi }, force: true });
+    saveModeFile(file, mesh, eig.vectors[k], { force: true });
     files.push(file);
   }
   say(`  wrote ${meshFile} and painted modes 1–6 (${files.map((f) => f.split('/').pop()).join(', ')})`);

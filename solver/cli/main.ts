@@ -4,7 +4,7 @@ import { join } from 'node:path';
 import { SHAPES, DEFAULT_SHAPE_VERTICES } from '../../meshes/shapes/index.ts';
 import { meshStatistics } from '../mesh/meshStatistics.ts';
 import { saveMeshFile } from '../io/meshFiles.ts';
-import { colorizeField } from '../io/colormap.ts';
+import { saveModeFile } from './saveModeFile.ts';
 import { laplaceBeltramiEigenpairs, type MassKind } from '../fem/laplaceBeltramiEigenpairs.ts';
 import { meshArea } from '../mesh/triangleAreas.ts';
 import { resolveMesh, requireFemReady, parseCount, type MeshSourceOptions } from './meshSource.ts';
@@ -128,12 +128,8 @@ export async function main(argv: string[]): Promise<number> {
       if (paint.length > 0) {
         mkdirSync(o.outDir, { recursive: true });
         for (const k of paint) {
-          const phi = eig.vectors[k];
-          let amax = 0;
-          for (let i = 0; i < n; i++) amax = Math.max(amax, Math.abs(phi[i]));
-          const colors = colorizeField(phi, 'diverging', [-amax || -1, amax || 1]);
           const file = join(o.outDir, `mode-${String(k).padStart(3, '0')}.ply`);
-          saveMeshFile(file, r.mesh, { colors, properties: { mode: phi }, force: o.force, comments: [`eigenvalue ${eig.values[k]}`] });
+          saveModeFile(file, r.mesh, eig.vectors[k], { force: o.force, comments: [`eigenvalue ${eig.values[k]}`] });
           written.push(file);
         }
       }
