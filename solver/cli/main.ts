@@ -11,6 +11,9 @@ import { resolveMesh, requireFemReady, parseCount, type MeshSourceOptions } from
 import { UsageError } from './UsageError.ts';
 import { runDemo } from './demo.ts';
 import { VERSION } from './version.ts';
+import { MODELS } from '../kinetics/models/index.ts';
+import { ScenarioError } from '../io/ScenarioError.ts';
+import { runScenarioFile, resumeRun, checkScenario } from './runScenario.ts';
 
 const collect = (value: string, previous: string[] = []) => previous.concat([value]);
 
@@ -37,6 +40,7 @@ export async function main(argv: string[]): Promise<number> {
     .exitOverride()
     .configureOutput({ writeErr: (s) => process.stderr.write(s) })
     .showHelpAfterError('(run with --help for usage)');
+  let exitCode = 0;
 
   program
     .command('shapes')
@@ -86,7 +90,7 @@ export async function main(argv: string[]): Promise<number> {
         for (const w of stats.errors) process.stdout.write(`  error: ${w}\n`);
         if (o.out) process.stdout.write(`  wrote ${o.out}\n`);
       }
-      if (stats.errors.length > 0) process.exitCode = 1;
+      if (stats.errors.length > 0) exitCode = 1;
     });
 
   addMeshOptions(
@@ -157,14 +161,61 @@ export async function main(argv: string[]): Promise<number> {
       await runDemo(o.outDir);
     });
 
+  program
+    .command('models')
+    .description('list the built-in kinetics with their equations, parameters and sources')
+    .option('--json', 'print as JSON')
+    .action((o: { json?: boolean }) => {
+      if (o.json) {
+        process.stdout.write(JSON.stringify(Object.values(MODELS).map(({ steadyStates: _s, ...m }) => m), null, 2) + '\n');
+        return;
+      }
+      for (const m of Object.values(MODELS)) {
+        process.stdout.write(`${m.name} — ${m.title}: ${m.description}\n`);
+        for (const s of m.species) process.stdout.write(`    d${s}/dt = ${m.reactions[s]}   + ∇·(${m.diffusion[s]} ∇${s})\n`);
+        for (const [k, p] of Object.entries(m.parameters)) process.stdout.write(`    ${k.padEnd(8)} default ${String(p.default).padEnd(8)} ${p.description}\n`);
+        process.stdout.write(`    source: ${m.citation}\n`);
+      }
+    });
+
+  program
+    .command('run')
+    .argument('[scenario]', 'scenario file (.yaml, .yml or .json)')
+    .description('run a scenario headless and write its outputs into a run directory')
+    .option('-o, --out <dir>', 'run directory to write (record.json, frames/, final.ply, metrics.csv, state.bin)')
+    .option('--resume <dir>', 'continue an interrupted run from its saved state')
+    .option('--force', 'replace an existing run directory')
+    .option('--check', 'check the scenario and print the resolved plan without running')
+    .addOption(new Option('--progress <mode>', 'progress display').choices(['auto', 'bar', 'lines', 'none']).default('auto'))
+    .action(async (file: string | undefined, o: { out?: string; resume?: string; force?: boolean; check?: boolean; progress: 'auto' | 'bar' | 'lines' | 'none' }) => {
+      let outcome;
+      if (o.resume) {
+        if (file || o.out) throw new UsageError('--resume DIR continues a run as it was set up: give no scenario or --out with it');
+        outcome = await resumeRun(o.resume, { progress: o.progress, command: argv });
+      } else {
+        if (!file) throw new UsageError('give a scenario file (placode run scenario.yaml --out DIR) or --resume DIR');
+        if (o.check) {
+          const plan = checkScenario(file);
+          process.stdout.write(JSON.stringify(plan, null, 2) + '\n');
+          return;
+        }
+        outcome = await runScenarioFile(file, { out: o.out, force: o.force, progress: o.progress, command: argv });
+      }
+      exitCode = outcome.reason === 'blow-up' ? 3 : outcome.reason === 'interrupted' ? 130 : 0;
+    });
+
   try {
     await program.parseAsync(argv, { from: 'user' });
-    return typeof process.exitCode === 'number' ? process.exitCode : 0;
+    return exitCode;
   } catch (e) {
     if (e instanceof CommanderError) {
       return e.exitCode === 0 || e.code === 'commander.helpDisplayed' || e.code === 'commander.version' ? 0 : 2;
     }
     const err = e as Error;
+    if (e instanceof ScenarioError) {
+      process.stderr.write(`placode run: ${err.message}\n`);
+      return 1;
+    }
     const cmd = argv.find((a) => !a.startsWith('-')) ?? '';
     process.stderr.write(`placode${cmd ? ' ' + cmd : ''}: ${err.message}\n`);
     if (process.env.PLACODE_DEBUG) process.stderr.write(`${err.stack}\n`);

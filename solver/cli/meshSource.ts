@@ -71,22 +71,56 @@ export function resolveMesh(spec: string, o: MeshSourceOptions): ResolvedMesh {
   } else {
     throw new UsageError(`"${spec}" is neither a built-in shape (${Object.keys(SHAPES).join(', ')}) nor an existing mesh file`);
   }
+  let weld: number | undefined;
+  if (o.weld !== undefined && o.weld !== false) {
+    weld = o.weld === true ? 0 : Number(o.weld);
+    if (!Number.isFinite(weld) || weld < 0) throw new UsageError(`--weld tolerance must be a number ≥ 0, got "${o.weld}"`);
+  }
+  const repaired = repairMesh(mesh, vertexData, {
+    weld,
+    dropUnreferenced: o.dropUnreferenced,
+    fixOrientation: o.fixOrientation,
+    refine: parseCount(o.refine, '--refine') ?? 0,
+    loop: parseCount(o.loop, '--loop') ?? 0,
+  });
+  mesh = repaired.mesh;
+  vertexData = repaired.vertexData;
+  notes.push(...repaired.notes);
+  return { mesh, source, vertexData, notes };
+}
+
+export interface MeshRepairs {
+  /** weld vertices closer than this (0: identical only); undefined: no welding */
+  weld?: number;
+  dropUnreferenced?: boolean;
+  fixOrientation?: boolean;
+  refine?: number;
+  loop?: number;
+}
+
+/**
+ * Apply repairs and refinements in a fixed order (weld, drop unreferenced,
+ * orient, midpoint refinement, Loop subdivision), carrying per-vertex data
+ * along. Errors are UsageErrors that say what to repair first.
+ */
+export function repairMesh(input: Mesh, data: Record<string, Float64Array>, o: MeshRepairs): { mesh: Mesh; vertexData: Record<string, Float64Array>; notes: string[] } {
+  let mesh = input;
+  let vertexData = data;
+  const notes: string[] = [];
   const remap = (map: Uint32Array, n: number) => {
-    const data: Record<string, Float64Array> = {};
+    const out: Record<string, Float64Array> = {};
     for (const [k, v] of Object.entries(vertexData)) {
       const d = new Float64Array(n);
       for (let i = 0; i < map.length; i++) if (map[i] < n) d[map[i]] = v[i];
-      data[k] = d;
+      out[k] = d;
     }
-    vertexData = data;
+    vertexData = out;
   };
-  if (o.weld !== undefined && o.weld !== false) {
-    const tol = o.weld === true ? 0 : Number(o.weld);
-    if (!Number.isFinite(tol) || tol < 0) throw new UsageError(`--weld tolerance must be a number ≥ 0, got "${o.weld}"`);
-    const w = weldVertices(mesh, tol);
+  if (o.weld !== undefined) {
+    const w = weldVertices(mesh, o.weld);
     mesh = w.mesh;
     remap(w.vertexMap, mesh.positions.length / 3);
-    notes.push(`welded ${w.mergedVertices} vertices (tolerance ${tol})${w.removedTriangles ? `, removed ${w.removedTriangles} collapsed triangles` : ''}`);
+    notes.push(`welded ${w.mergedVertices} vertices (tolerance ${o.weld})${w.removedTriangles ? `, removed ${w.removedTriangles} collapsed triangles` : ''}`);
   }
   if (o.dropUnreferenced) {
     const d = dropUnreferencedVertices(mesh);
@@ -101,8 +135,8 @@ export function resolveMesh(spec: string, o: MeshSourceOptions): ResolvedMesh {
     mesh = r.mesh;
     notes.push(r.orientable ? `reoriented ${r.flipped} triangles` : 'the surface is not orientable; orientation left partly inconsistent');
   }
-  const refine = parseCount(o.refine, '--refine') ?? 0;
-  const loop = parseCount(o.loop, '--loop') ?? 0;
+  const refine = o.refine ?? 0;
+  const loop = o.loop ?? 0;
   if (refine + loop > 0) {
     const pre = validateMesh(mesh);
     if (pre.errors.length > 0) throw new UsageError(`cannot refine a mesh with errors: ${pre.errors[0].message}`);
@@ -119,7 +153,7 @@ export function resolveMesh(spec: string, o: MeshSourceOptions): ResolvedMesh {
   }
   if (refine) notes.push(`midpoint-refined ${refine} times`);
   if (loop) notes.push(`Loop-subdivided ${loop} times`);
-  return { mesh, source, vertexData, notes };
+  return { mesh, vertexData, notes };
 }
 
 /** Refuse meshes the FEM cannot use, listing every error and the repair to try. */

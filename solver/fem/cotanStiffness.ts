@@ -13,8 +13,12 @@ import { vertexSparsityPattern } from './vertexSparsityPattern.ts';
  * discrete Laplace–Beltrami operator is −M⁻¹K. Boundary edges get one cotangent
  * (natural no-flux condition). Pass `out` (a matrix from an earlier call on the
  * same connectivity) to reassemble in place.
+ *
+ * With `coefficient` (one value per triangle, e.g. a diffusivity D) the result
+ * is the stiffness of ∇_Γ·(D∇_Γ u): each triangle's contribution is scaled by
+ * its value; it stays symmetric with K·1 = 0, and positive semi-definite for D ≥ 0.
  */
-export function cotanStiffness(mesh: Mesh, out?: CsrMatrix): CsrMatrix {
+export function cotanStiffness(mesh: Mesh, out?: CsrMatrix, coefficient?: Float64Array): CsrMatrix {
   const pattern = vertexSparsityPattern(mesh);
   const topo = meshTopology(mesh);
   const values = out?.values ?? new Float64Array(pattern.columns.length);
@@ -33,7 +37,7 @@ export function cotanStiffness(mesh: Mesh, out?: CsrMatrix): CsrMatrix {
     const e1x = p[a] - p[c], e1y = p[a + 1] - p[c + 1], e1z = p[a + 2] - p[c + 2];
     const e2x = p[b] - p[a], e2y = p[b + 1] - p[a + 1], e2z = p[b + 2] - p[a + 2];
     const nx = e2y * e1z - e2z * e1y, ny = e2z * e1x - e2x * e1z, nz = e2x * e1y - e2y * e1x;
-    const inv = 0.5 / Math.sqrt(nx * nx + ny * ny + nz * nz); // ½ / (2·area)
+    const inv = (coefficient ? 0.5 * coefficient[t] : 0.5) / Math.sqrt(nx * nx + ny * ny + nz * nz); // ½ / (2·area)
     // cot at corner k = −(e_{k+1}·e_{k+2}) / (2·area)
     const w0 = -(e1x * e2x + e1y * e2y + e1z * e2z) * inv;
     const w1 = -(e2x * e0x + e2y * e0y + e2z * e0z) * inv;

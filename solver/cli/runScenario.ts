@@ -1,0 +1,341 @@
+import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import cliProgress from 'cli-progress';
+import { parseScenario } from '../io/readScenario.ts';
+import { resolveScenario, type ResolvedScenario } from '../io/resolveScenario.ts';
+import { writeFileAtomic } from '../io/meshFiles.ts';
+import { RUN_FILES, frameName, encodeFrame, stateMetrics, metricsHeader, metricsRow, encodeState, decodeState, type SavedState } from '../io/runFiles.ts';
+import { ReactionDiffusionStepper } from '../integrate/ReactionDiffusionStepper.ts';
+import { meshArea } from '../mesh/triangleAreas.ts';
+import { nodeScenarioEnvironment, meshChecksum } from './scenarioEnvironment.ts';
+import { UsageError } from './UsageError.ts';
+import { VERSION } from './version.ts';
+
+export type StopReason = 'end' | 'steady-state' | 'blow-up' | 'interrupted';
+
+export interface RunOptions {
+  /** run directory to write (new run) */
+  out?: string;
+  /** replace an existing, non-empty run directory */
+  force?: boolean;
+  /** 'bar' on a terminal, 'lines' otherwise; 'none' for silence */
+  progress?: 'auto' | 'bar' | 'lines' | 'none';
+  /** stop as if interrupted once this many steps have been taken in this call (tests, scripted pauses) */
+  interruptAfterSteps?: number;
+  /** the command line, for the record */
+  command?: string[];
+  /** where progress and messages go (default: stderr) */
+  log?: (line: string) => void;
+}
+
+export interface RunOutcome {
+  dir: string;
+  reason: StopReason;
+  time: number;
+  step: number;
+  message: string;
+}
+
+interface RunRecord {
+  tool: { name: string; version: string };
+  node: string;
+  platform: string;
+  created: string;
+  updated: string;
+  command: string[];
+  scenarioFile: string;
+  scenarioText: string;
+  resolved: Record<string, unknown>;
+  mesh: { source: Record<string, unknown>; vertices: number; triangles: number; area: number; checksum: string; notes: string[] };
+  seed: number;
+  warnings: string[];
+  status: 'running' | StopReason;
+  stop?: { reason: StopReason; time: number; step: number; message: string };
+  frames: { file: string; time: number; step: number }[];
+  sessions: { started: string; fromStep: number; toStep?: number; steppingSeconds?: number; outputSeconds?: number; setupSeconds: number }[];
+  performance?: { steps: number; steppingSeconds: number; stepsPerSecond: number; vertexStepsPerSecond: number; solverIterationsPerStep?: number; stepperBytesPerVertex: number };
+}
+
+const isDirWithFiles = (dir: string) => existsSync(dir) && statSync(dir).isDirectory() && readdirSync(dir).length > 0;
+
+function readScenarioText(file: string): string {
+  try {
+    return readFileSync(file, 'utf8');
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new UsageError(`${file}: ${code === 'ENOENT' ? 'no such scenario file' : code === 'EISDIR' ? 'is a directory, not a scenario file' : (e as Error).message}`);
+  }
+}
+
+/** Check a scenario and return its resolved plan (what `run` would do), without running it. */
+export function checkScenario(file: string): Record<string, unknown> {
+  const r = resolveScenario(parseScenario(readScenarioText(file), file), file, nodeScenarioEnvironment(file));
+  return { ...r.summary, vertices: r.mesh.positions.length / 3, warnings: r.warnings, meshNotes: r.meshNotes };
+}
+
+/** Start a new run of a scenario file into `options.out`. */
+export async function runScenarioFile(file: string, options: RunOptions): Promise<RunOutcome> {
+  if (!options.out) throw new UsageError('say where the run goes: --out DIR');
+  const out = resolve(options.out);
+  if (isDirWithFiles(out) && !options.force) {
+    throw new UsageError(`${options.out} already holds files; choose a new --out, add --force to replace it, or continue it with placode run --resume ${options.out}`);
+  }
+  const text = readScenarioText(file);
+  const t0 = performance.now();
+  const resolved = resolveScenario(parseScenario(text, file), file, nodeScenarioEnvironment(file));
+  if (options.force && existsSync(out)) {
+    for (const name of [RUN_FILES.record, RUN_FILES.metrics, RUN_FILES.state, RUN_FILES.final]) rmSync(join(out, name), { force: true });
+    rmSync(join(out, RUN_FILES.frames), { recursive: true, force: true });
+  }
+  mkdirSync(join(out, RUN_FILES.frames), { recursive: true });
+  const now = new Date().toISOString();
+  const record: RunRecord = {
+    tool: { name: 'placode', version: VERSION },
+    node: process.version,
+    platform: `${process.platform}-${process.arch}`,
+    created: now,
+    updated: now,
+    command: options.command ?? [],
+    scenarioFile: resolve(file),
+    scenarioText: text,
+    resolved: resolved.summary,
+    mesh: {
+      source: resolved.meshSource,
+      vertices: resolved.mesh.positions.length / 3,
+      triangles: resolved.mesh.triangles.length / 3,
+      area: meshArea(resolved.mesh),
+      checksum: meshChecksum(resolved.mesh),
+      notes: resolved.meshNotes,
+    },
+    seed: resolved.seed,
+    warnings: resolved.warnings,
+    status: 'running',
+    frames: [],
+    sessions: [],
+  };
+  return execute(out, resolved, record, undefined, [], options, t0);
+}
+
+/** Continue an interrupted run from its saved state. */
+export async function resumeRun(dir: string, options: RunOptions): Promise<RunOutcome> {
+  const out = resolve(dir);
+  const recordFile = join(out, RUN_FILES.record);
+  if (!existsSync(recordFile)) throw new UsageError(`${dir} is not a run directory (no ${RUN_FILES.record})`);
+  let record: RunRecord;
+  try {
+    record = JSON.parse(readFileSync(recordFile, 'utf8'));
+  } catch (e) {
+    throw new UsageError(`${recordFile}: cannot be read (${(e as Error).message})`);
+  }
+  if (record.status !== 'running' && record.status !== 'interrupted') {
+    throw new UsageError(`${dir} has already finished (${record.stop?.message ?? record.status}); nothing to resume`);
+  }
+  const t0 = performance.now();
+  const resolved = resolveScenario(parseScenario(record.scenarioText, record.scenarioFile), record.scenarioFile, nodeScenarioEnvironment(record.scenarioFile));
+  const checksum = meshChecksum(resolved.mesh);
+  if (checksum !== record.mesh.checksum) {
+    throw new UsageError(`the mesh of ${dir} has changed since the run started (checksum ${checksum.slice(0, 19)}… ≠ ${record.mesh.checksum.slice(0, 19)}…): resume needs the same mesh`);
+  }
+  const stateFile = join(out, RUN_FILES.state);
+  if (!existsSync(stateFile)) throw new UsageError(`${dir} has no saved state (${RUN_FILES.state}) to resume from`);
+  const saved = decodeState(readFileSync(stateFile), stateFile);
+  if (saved.meshChecksum !== checksum || saved.dt !== resolved.dt || saved.species.join() !== resolved.species.join()) {
+    throw new UsageError(`${stateFile} does not belong to this run's mesh, step or species`);
+  }
+  // keep metrics rows and frames up to the saved step
+  const metricsFile = join(out, RUN_FILES.metrics);
+  const rows = existsSync(metricsFile) ? readFileSync(metricsFile, 'utf8').trim().split('\n').slice(1).filter((r) => Number(r.split(',')[1]) <= saved.step) : [];
+  record.frames = record.frames.filter((f) => f.step <= saved.step);
+  return execute(out, resolved, record, saved, rows, options, t0);
+}
+
+async function execute(out: string, r: ResolvedScenario, record: RunRecord, saved: SavedState | undefined, metricRows: string[], options: RunOptions, t0: number): Promise<RunOutcome> {
+  const log = options.log ?? ((line: string) => process.stderr.write(line + '\n'));
+  const n = r.mesh.positions.length / 3;
+  const nS = r.species.length;
+  const { dt, steps: lastStep } = r;
+  const every = r.output.everySteps;
+  const checksum = record.mesh.checksum;
+  const stepper = new ReactionDiffusionStepper(r.system, { scheme: r.scheme, dt, solver: r.solver, tolerance: r.tolerance }, { stiffness: r.stiffness, mass: r.mass });
+  stepper.setState(saved ? saved.state : r.initial);
+  let step = saved?.step ?? 0;
+  let nextFrame = saved?.nextFrame ?? 0;
+  let reference: Float64Array | undefined = r.steadyState !== undefined ? new Float64Array(saved?.reference ?? r.initial) : undefined;
+  let referenceStep = saved ? Math.floor(saved.step / every) * every : 0;
+  const session: RunRecord['sessions'][number] = { started: new Date().toISOString(), fromStep: step, setupSeconds: (performance.now() - t0) / 1000 };
+  record.sessions.push(session);
+  for (const w of r.warnings) log(`warning: ${w}`);
+  for (const note of r.meshNotes) log(`mesh: ${note}`);
+  log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${n} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''} → ${out}`);
+
+  let outputSeconds = 0;
+  const writeRecord = () => {
+    record.updated = new Date().toISOString();
+    writeFileAtomic(join(out, RUN_FILES.record), JSON.stringify(record, null, 2) + '\n', true);
+  };
+  const saveState = (state: Float64Array, atStep: number) => {
+    writeFileAtomic(join(out, RUN_FILES.state), encodeState({ step: atStep, time: atStep * dt, nextFrame, species: [...r.species], vertexCount: n, meshChecksum: checksum, dt, state, reference }), true);
+  };
+  const comments = (atStep: number) => [`placode ${VERSION} run ${r.name}`, `time ${atStep * dt} step ${atStep}`];
+  const style = { colour: r.output.colour, colormap: r.output.colormap, range: r.output.range };
+  /** metrics row, frame and saved state for the state at `atStep` */
+  const emit = (state: Float64Array, atStep: number, frame: boolean) => {
+    const tw = performance.now();
+    const lastRow = metricRows[metricRows.length - 1];
+    if (lastRow === undefined || Number(lastRow.split(',')[1]) !== atStep) metricRows.push(metricsRow(atStep * dt, atStep, stateMetrics(state, nS, r.mass)));
+    writeFileAtomic(join(out, RUN_FILES.metrics), [metricsHeader(r.species), ...metricRows].join('\n') + '\n', true);
+    if (frame && r.output.frames) {
+      const name = frameName(nextFrame);
+      writeFileAtomic(join(out, RUN_FILES.frames, name), encodeFrame(r.mesh, r.species, state, style, comments(atStep)), true);
+      record.frames.push({ file: `${RUN_FILES.frames}/${name}`, time: atStep * dt, step: atStep });
+    }
+    if (frame) nextFrame++;
+    saveState(state, atStep);
+    outputSeconds += (performance.now() - tw) / 1000;
+  };
+  const finish = (reason: StopReason, atStep: number, message: string, state: Float64Array): RunOutcome => {
+    const tw = performance.now();
+    if (reason !== 'interrupted') writeFileAtomic(join(out, RUN_FILES.final), encodeFrame(r.mesh, r.species, state, style, comments(atStep)), true);
+    outputSeconds += (performance.now() - tw) / 1000;
+    record.status = reason;
+    record.stop = { reason, time: atStep * dt, step: atStep, message };
+    session.toStep = atStep;
+    session.steppingSeconds = steppingSeconds;
+    session.outputSeconds = outputSeconds;
+    const allSteps = record.sessions.reduce((a, s) => a + ((s.toStep ?? s.fromStep) - s.fromStep), 0);
+    const allSeconds = record.sessions.reduce((a, s) => a + (s.steppingSeconds ?? 0), 0);
+    record.performance = {
+      steps: allSteps,
+      steppingSeconds: allSeconds,
+      stepsPerSecond: allSteps / Math.max(allSeconds, 1e-9),
+      vertexStepsPerSecond: (allSteps * n) / Math.max(allSeconds, 1e-9),
+      solverIterationsPerStep: r.scheme === 'imex' && r.solver === 'cg' ? stepper.totalIterations / Math.max(1, stepper.stepsTaken) : undefined,
+      stepperBytesPerVertex: stepper.bytes() / n,
+    };
+    writeRecord();
+    progress.stop();
+    log(message);
+    return { dir: out, reason, time: atStep * dt, step: atStep, message };
+  };
+
+  const progress = makeProgress(options, log, step * dt, lastStep * dt);
+  let interrupted = false;
+  const onSignal = () => {
+    if (interrupted) process.exit(130);
+    interrupted = true;
+  };
+  process.on('SIGINT', onSignal);
+  process.on('SIGTERM', onSignal);
+  let steppingSeconds = 0;
+  try {
+    if (!saved) emit(stepper.state, 0, true);
+    writeRecord();
+    const startStep = step;
+    const started = performance.now();
+    while (step < lastStep) {
+      const target = Math.min(lastStep, (Math.floor(step / every) + 1) * every);
+      const chunkStart = performance.now();
+      while (step < target) {
+        const ok = stepper.step(step * dt);
+        step++;
+        if (!ok) {
+          steppingSeconds += (performance.now() - chunkStart) / 1000;
+          const bad = stepper.state;
+          let at = 0;
+          while (at < bad.length && Number.isFinite(bad[at])) at++;
+          const s = at % nS, vertex = Math.floor(at / nS);
+          const good = stepper.previous;
+          emit(good, step - 1, false);
+          return finish('blow-up', step - 1,
+            `blow-up at t=${(step * dt).toPrecision(6)} (step ${step}): ${r.species[s]} became ${bad[at]} at vertex ${vertex}. ` +
+            `The last good state (t=${((step - 1) * dt).toPrecision(6)}) is in ${RUN_FILES.final} and ${RUN_FILES.state}. ` +
+            (r.scheme === 'explicit' ? 'Try a smaller time.step or scheme: imex.' : 'Try a smaller time.step: the reactions are integrated explicitly.'),
+            good);
+        }
+        if ((step & 7) === 0 && performance.now() - chunkStart > 200) break;
+        if (options.interruptAfterSteps !== undefined && step - startStep >= options.interruptAfterSteps) {
+          interrupted = true;
+          break;
+        }
+      }
+      steppingSeconds += (performance.now() - chunkStart) / 1000;
+      progress.update(step * dt, (step - startStep) / Math.max(1e-9, (performance.now() - started) / 1000));
+      await new Promise((res) => setImmediate(res));
+      const atOutput = step % every === 0 || step === lastStep;
+      if (atOutput) {
+        emit(stepper.state, step, true);
+        if (reference && r.steadyState !== undefined) {
+          const change = relativeChange(stepper.state, reference, (step - referenceStep) * dt);
+          reference.set(stepper.state);
+          referenceStep = step;
+          if (change < r.steadyState) {
+            return finish('steady-state', step, `steady state at t=${(step * dt).toPrecision(6)}: relative change ${change.toExponential(2)} per unit time < ${r.steadyState}. Outputs in ${out}`, stepper.state);
+          }
+        }
+      }
+      if (interrupted) {
+        if (!atOutput) saveState(stepper.state, step);
+        return finish('interrupted', step, `interrupted at t=${(step * dt).toPrecision(6)} (step ${step} of ${lastStep}); continue with: placode run --resume ${out}`, stepper.state);
+      }
+    }
+    return finish('end', step, `finished at t=${(step * dt).toPrecision(6)} after ${step} steps. Outputs in ${out}`, stepper.state);
+  } finally {
+    process.off('SIGINT', onSignal);
+    process.off('SIGTERM', onSignal);
+    progress.stop();
+  }
+}
+
+/** max_i |U − U_ref| / (Δt · max(max_i |U|, 1e-30)). */
+function relativeChange(state: Float64Array, reference: Float64Array, interval: number): number {
+  let diff = 0, size = 0;
+  for (let i = 0; i < state.length; i++) {
+    diff = Math.max(diff, Math.abs(state[i] - reference[i]));
+    size = Math.max(size, Math.abs(state[i]));
+  }
+  return diff / (Math.max(interval, 1e-300) * Math.max(size, 1e-30));
+}
+
+interface Progress {
+  update(time: number, stepsPerSecond: number): void;
+  stop(): void;
+}
+
+function formatSeconds(s: number): string {
+  if (!Number.isFinite(s)) return '?';
+  if (s < 90) return `${s.toFixed(0)} s`;
+  if (s < 5400) return `${(s / 60).toFixed(1)} min`;
+  return `${(s / 3600).toFixed(1)} h`;
+}
+
+function makeProgress(options: RunOptions, log: (line: string) => void, start: number, end: number): Progress {
+  const mode = options.progress === 'auto' || options.progress === undefined ? (process.stderr.isTTY ? 'bar' : 'lines') : options.progress;
+  if (mode === 'none') return { update() {}, stop() {} };
+  const started = performance.now();
+  if (mode === 'bar') {
+    const bar = new cliProgress.SingleBar({
+      format: 't {time}/{end} |{bar}| {percentage}% | {rate} steps/s | ETA {eta_formatted}',
+      hideCursor: true,
+      stream: process.stderr,
+      etaBuffer: 50,
+    }, cliProgress.Presets.shades_classic);
+    bar.start(end, start, { time: start, end, rate: 0 });
+    let stopped = false;
+    return {
+      update(time, rate) { if (!stopped) bar.update(Math.min(time, end), { time: Number(time.toPrecision(6)), rate: rate.toFixed(0) }); },
+      stop() { if (!stopped) { stopped = true; bar.stop(); } },
+    };
+  }
+  let last = -Infinity;
+  return {
+    update(time, rate) {
+      const now = performance.now();
+      if (now - last < 2000 && time < end) return;
+      last = now;
+      const elapsed = (now - started) / 1000;
+      const eta = time > start ? (elapsed * (end - time)) / (time - start) : Infinity;
+      log(`  t=${time.toPrecision(6)}/${end} (${((100 * time) / end).toFixed(1)}%)  ${rate.toFixed(0)} steps/s  ETA ${formatSeconds(eta)}`);
+    },
+    stop() {},
+  };
+}

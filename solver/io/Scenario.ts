@@ -1,0 +1,197 @@
+/**
+ * A scenario file, as written by the user (JSON or YAML). Everything except
+ * `mesh`, `kinetics` and `time.end` has a default; `resolveScenario` fills
+ * them in and the run record keeps the resolved form.
+ */
+export interface Scenario {
+  name?: string;
+  description?: string;
+  /** seed of every random choice in the run (noise, random spot centres) */
+  seed?: number;
+  mesh: MeshSpec;
+  kinetics: KineticsSpec;
+  /** per species: a number, a formula in x, y, z and the parameters, or a per-vertex value from the mesh file */
+  diffusion?: Record<string, FieldValue>;
+  initial?: InitialSpec;
+  time: TimeSpec;
+  output?: OutputSpec;
+}
+
+export type FieldValue = number | string | { vertexData: string };
+
+export interface MeshSpec {
+  /** a built-in shape (see `placode shapes`) … */
+  shape?: string;
+  params?: Record<string, number>;
+  vertices?: number;
+  /** … or a mesh file, relative to the scenario file */
+  file?: string;
+  weld?: boolean | number;
+  fixOrientation?: boolean;
+  dropUnreferenced?: boolean;
+  refine?: number;
+  loop?: number;
+}
+
+export interface KineticsSpec {
+  /** a built-in model (see `placode models`) … */
+  model?: string;
+  /** … or your own: species names and a rate formula for each */
+  species?: string[];
+  reactions?: Record<string, string>;
+  /** parameter values: numbers, formulas in x, y, z, or per-vertex values */
+  parameters?: Record<string, FieldValue>;
+}
+
+export interface InitialSpec {
+  /** per species: "steady", a number or a formula in x, y, z; or "steady" for all */
+  values?: 'steady' | Record<string, number | string>;
+  /** which homogeneous steady state, when the model has several (index, default 0 = first listed) */
+  steadyState?: number;
+  /** uniform random perturbation in [−a, a], added to every species or to the listed ones */
+  noise?: number | { amplitude: number; species?: string[] };
+  spots?: SpotsSpec;
+  /** start from a previous run's final state (a run directory, relative to the scenario file) */
+  from?: string;
+}
+
+export interface SpotsSpec {
+  /** number of spots at seeded random vertices … */
+  count?: number;
+  /** … or centres given as points (nearest vertex is used) … */
+  centres?: [number, number, number][];
+  /** … or as vertex indices */
+  vertices?: number[];
+  /** geodesic-ish (straight-line) radius around each centre */
+  radius: number;
+  /** values set inside the spots, per species */
+  values: Record<string, number>;
+}
+
+export interface TimeSpec {
+  scheme?: 'imex' | 'explicit';
+  /** time step; default: the model's suggestion (imex) or a stable step (explicit) */
+  step?: number;
+  end: number;
+  /** stop when the relative change per unit time falls below this */
+  steadyState?: number;
+  solver?: 'cg' | 'cholesky';
+  tolerance?: number;
+}
+
+export interface OutputSpec {
+  /** time between frames (and metrics rows, and checkpoints) */
+  every?: number;
+  /** species painted as vertex colours */
+  colour?: string;
+  colormap?: string;
+  /** fixed colour range, or "frame" to stretch each frame */
+  range?: [number, number] | 'frame';
+  frames?: boolean;
+}
+
+const fieldValue = {
+  description: 'a number, a formula (text) or {vertexData: NAME}',
+  oneOf: [
+    { type: 'number' },
+    { type: 'string', minLength: 1 },
+    { type: 'object', properties: { vertexData: { type: 'string', minLength: 1 } }, required: ['vertexData'], additionalProperties: false },
+  ],
+};
+
+const nameMap = (value: object) => ({ type: 'object', additionalProperties: value, propertyNames: { pattern: '^[A-Za-z][A-Za-z0-9_]*$' } });
+
+/** JSON Schema (draft 2020-12 subset, checked with ajv) of a scenario file. */
+export const SCENARIO_SCHEMA = {
+  type: 'object',
+  additionalProperties: false,
+  required: ['mesh', 'kinetics', 'time'],
+  properties: {
+    name: { type: 'string' },
+    description: { type: 'string' },
+    seed: { type: 'integer', minimum: 0, maximum: 4294967295 },
+    mesh: {
+      type: 'object',
+      additionalProperties: false,
+      properties: {
+        shape: { type: 'string', minLength: 1 },
+        params: nameMap({ type: 'number' }),
+        vertices: { type: 'integer', minimum: 4 },
+        file: { type: 'string', minLength: 1 },
+        weld: { description: 'true, false or a distance', oneOf: [{ type: 'boolean' }, { type: 'number', minimum: 0 }] },
+        fixOrientation: { type: 'boolean' },
+        dropUnreferenced: { type: 'boolean' },
+        refine: { type: 'integer', minimum: 0, maximum: 6 },
+        loop: { type: 'integer', minimum: 0, maximum: 6 },
+      },
+    },
+    kinetics: {
+      type: 'object',
+      additionalProperties: false,
+      properties: {
+        model: { type: 'string', minLength: 1 },
+        species: { type: 'array', items: { type: 'string' }, minItems: 1, maxItems: 8 },
+        reactions: nameMap({ type: 'string' }),
+        parameters: nameMap(fieldValue),
+      },
+    },
+    diffusion: nameMap(fieldValue),
+    initial: {
+      type: 'object',
+      additionalProperties: false,
+      properties: {
+        values: { description: '"steady", or per species a number, a formula or "steady"', oneOf: [{ const: 'steady' }, nameMap({ description: 'a number, a formula or "steady"', oneOf: [{ type: 'number' }, { type: 'string', minLength: 1 }] })] },
+        steadyState: { type: 'integer', minimum: 0 },
+        noise: {
+          description: 'an amplitude, or {amplitude, species: [names]}',
+          oneOf: [
+            { type: 'number', minimum: 0 },
+            {
+              type: 'object',
+              additionalProperties: false,
+              required: ['amplitude'],
+              properties: { amplitude: { type: 'number', minimum: 0 }, species: { type: 'array', items: { type: 'string' }, minItems: 1 } },
+            },
+          ],
+        },
+        spots: {
+          type: 'object',
+          additionalProperties: false,
+          required: ['radius', 'values'],
+          properties: {
+            count: { type: 'integer', minimum: 1 },
+            centres: { type: 'array', minItems: 1, items: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 } },
+            vertices: { type: 'array', minItems: 1, items: { type: 'integer', minimum: 0 } },
+            radius: { type: 'number', exclusiveMinimum: 0 },
+            values: nameMap({ type: 'number' }),
+          },
+        },
+        from: { type: 'string', minLength: 1 },
+      },
+    },
+    time: {
+      type: 'object',
+      additionalProperties: false,
+      required: ['end'],
+      properties: {
+        scheme: { enum: ['imex', 'explicit'] },
+        step: { type: 'number', exclusiveMinimum: 0 },
+        end: { type: 'number', exclusiveMinimum: 0 },
+        steadyState: { type: 'number', exclusiveMinimum: 0 },
+        solver: { enum: ['cg', 'cholesky'] },
+        tolerance: { type: 'number', exclusiveMinimum: 0, maximum: 0.1 },
+      },
+    },
+    output: {
+      type: 'object',
+      additionalProperties: false,
+      properties: {
+        every: { type: 'number', exclusiveMinimum: 0 },
+        colour: { type: 'string' },
+        colormap: { type: 'string' },
+        range: { description: '"frame" or [min, max]', oneOf: [{ const: 'frame' }, { type: 'array', items: { type: 'number' }, minItems: 2, maxItems: 2 }] },
+        frames: { type: 'boolean' },
+      },
+    },
+  },
+} as const;

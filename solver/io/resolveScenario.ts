@@ -1,0 +1,411 @@
+import type { Mesh } from '../mesh/Mesh.ts';
+import type { Scenario, FieldValue, MeshSpec } from './Scenario.ts';
+import type { ScenarioSource } from './readScenario.ts';
+import { pathText, sortByLine } from './readScenario.ts';
+import { ScenarioError, closestName, type ScenarioProblem } from './ScenarioError.ts';
+import { MODELS } from '../kinetics/models/index.ts';
+import type { KineticsModel } from '../kinetics/KineticsModel.ts';
+import { compileKinetics, KineticsError, type CompiledKinetics } from '../kinetics/compileKinetics.ts';
+import { FormulaError } from '../kinetics/FormulaError.ts';
+import { evaluateSurfaceFormula } from '../kinetics/surfaceField.ts';
+import type { ReactionDiffusionSystem } from '../integrate/ReactionDiffusionSystem.ts';
+import { systemExplicitLimit, type ExplicitStepLimit } from '../integrate/explicitStepLimit.ts';
+import { cotanStiffness } from '../fem/cotanStiffness.ts';
+import { lumpedMass } from '../fem/lumpedMass.ts';
+import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
+import { seededRandom } from '../linalg/seededRandom.ts';
+import { COLORMAP_NAMES, type ColormapName } from './colormap.ts';
+
+/** What a mesh loader hands back (Node reads files; the viewer builds shapes in a worker). */
+export interface LoadedMesh {
+  mesh: Mesh;
+  vertexData: Record<string, Float64Array>;
+  /** how the mesh was made, for the record */
+  source: Record<string, unknown>;
+  notes: string[];
+}
+
+export interface ScenarioEnvironment {
+  /** build or read the mesh; throw an Error whose message says what is wrong */
+  loadMesh(spec: MeshSpec): LoadedMesh;
+  /** a previous run's final state, by species name (for `initial.from`) */
+  loadState?(from: string): { species: string[]; values: Record<string, Float64Array> };
+}
+
+export interface OutputPlan {
+  every: number;
+  everySteps: number;
+  colour: string;
+  colormap: ColormapName;
+  range: [number, number] | 'frame';
+  frames: boolean;
+}
+
+/** A scenario with every default filled in and everything built that a run needs. */
+export interface ResolvedScenario {
+  name: string;
+  seed: number;
+  mesh: Mesh;
+  meshSource: Record<string, unknown>;
+  meshNotes: string[];
+  model: string;
+  kineticsModel?: KineticsModel;
+  species: string[];
+  reactions: Record<string, string>;
+  parameters: Record<string, FieldValue>;
+  diffusion: Record<string, FieldValue>;
+  kinetics: CompiledKinetics;
+  system: ReactionDiffusionSystem;
+  stiffness: CsrMatrix;
+  mass: Float64Array;
+  initial: Float64Array;
+  scheme: 'imex' | 'explicit';
+  dt: number;
+  end: number;
+  steps: number;
+  steadyState?: number;
+  solver: 'cg' | 'cholesky';
+  tolerance: number;
+  explicitLimit?: ExplicitStepLimit;
+  output: OutputPlan;
+  warnings: string[];
+  /** the resolved scenario as plain data, for record.json */
+  summary: Record<string, unknown>;
+}
+
+/** Collects problems with their place in the file; `fail` throws them all. */
+class Problems {
+  readonly list: ScenarioProblem[] = [];
+  constructor(private readonly source: ScenarioSource) {}
+  add(path: (string | number)[], message: string): void {
+    this.list.push({ path: pathText(path), message, ...this.source.locate(path) });
+  }
+  fail(file: string): void {
+    if (this.list.length) throw new ScenarioError(file, sortByLine(this.list));
+  }
+}
+
+const DEFAULT_SEED = 1;
+
+/**
+ * Check a parsed scenario against the models, formulas and mesh, fill in
+ * defaults and build the system, initial state and time stepping plan.
+ * Throws a ScenarioError listing every problem found with its path and line.
+ */
+export function resolveScenario(source: ScenarioSource, file: string, env: ScenarioEnvironment): ResolvedScenario {
+  const sc: Scenario = source.scenario;
+  const problems = new Problems(source);
+  const warnings: string[] = [];
+
+  // ---- kinetics (checked before the mesh: cheap, and most mistakes are here)
+  const k = sc.kinetics;
+  let model: KineticsModel | undefined;
+  let species: string[] = [];
+  let reactions: Record<string, string> = {};
+  const parameterSpec: Record<string, FieldValue> = {};
+  if (k.model !== undefined) {
+    model = MODELS[k.model];
+    if (!model) {
+      const hint = closestName(k.model, Object.keys(MODELS));
+      problems.add(['kinetics', 'model'], `unknown model "${k.model}"${hint ? ` (did you mean "${hint}"?)` : ''}; built-in models: ${Object.keys(MODELS).join(', ')}, or give species and reactions for your own`);
+    } else {
+      if (k.species || k.reactions) problems.add(['kinetics', k.species ? 'species' : 'reactions'], `give either a built-in model or your own species and reactions, not both`);
+      species = [...model.species];
+      reactions = { ...model.reactions };
+      for (const [name, p] of Object.entries(model.parameters)) parameterSpec[name] = p.default;
+      for (const [name, v] of Object.entries(k.parameters ?? {})) {
+        if (!(name in model.parameters)) {
+          const hint = closestName(name, Object.keys(model.parameters));
+          problems.add(['kinetics', 'parameters', name], `${model.title} has no parameter "${name}"${hint ? ` (did you mean "${hint}"?)` : ''}; its parameters: ${Object.keys(model.parameters).join(', ')}`);
+        } else parameterSpec[name] = v;
+      }
+    }
+  } else {
+    if (!k.species) problems.add(['kinetics'], 'name a built-in model (model: gray-scott, …) or list your own species and reactions');
+    else if (!k.reactions) problems.add(['kinetics'], 'missing "reactions": a rate formula for each species');
+    species = k.species ?? [];
+    reactions = k.reactions ?? {};
+    Object.assign(parameterSpec, k.parameters ?? {});
+  }
+  let kinetics: CompiledKinetics | undefined;
+  if (species.length && problems.list.length === 0) {
+    try {
+      kinetics = compileKinetics(species, reactions, Object.keys(parameterSpec));
+    } catch (e) {
+      if (!(e instanceof KineticsError)) throw e;
+      for (const p of e.problems) {
+        const [kind, name] = p.key.split('.');
+        const path = kind === 'reactions' ? ['kinetics', 'reactions', name] : kind === 'parameters' ? ['kinetics', 'parameters', name] : ['kinetics', 'species'];
+        problems.add(path, p.message);
+      }
+    }
+  }
+
+  // ---- time and output settings that do not need the mesh
+  const scheme = sc.time.scheme ?? 'imex';
+  const solver = sc.time.solver ?? 'cg';
+  if (sc.time.solver && scheme === 'explicit') problems.add(['time', 'solver'], 'the explicit scheme solves no linear systems; remove "solver" or use scheme: imex');
+  const colour = sc.output?.colour ?? model?.display ?? species[0];
+  if (colour !== undefined && species.length && !species.includes(colour)) problems.add(['output', 'colour'], `"${colour}" is not a species (${species.join(', ')})`);
+  const colormap = (sc.output?.colormap ?? 'viridis') as ColormapName;
+  if (!COLORMAP_NAMES.includes(colormap)) problems.add(['output', 'colormap'], `unknown colormap "${colormap}"; choose one of ${COLORMAP_NAMES.join(', ')}`);
+  const range = sc.output?.range ?? 'frame';
+  if (Array.isArray(range) && !(range[1] > range[0])) problems.add(['output', 'range'], `[min, max] needs max > min, got [${range.join(', ')}]`);
+  if (sc.diffusion) {
+    for (const name of Object.keys(sc.diffusion)) {
+      if (species.length && !species.includes(name)) problems.add(['diffusion', name], `"${name}" is not a species (${species.join(', ')})`);
+    }
+  }
+  problems.fail(file);
+
+  // ---- mesh
+  let loaded: LoadedMesh;
+  const meshSpec = sc.mesh;
+  if ((meshSpec.shape === undefined) === (meshSpec.file === undefined)) {
+    problems.add(['mesh'], meshSpec.shape ? 'give either a shape or a file, not both' : 'give a built-in shape (shape: sphere) or a mesh file (file: paddle.ply)');
+    problems.fail(file);
+  }
+  try {
+    loaded = env.loadMesh(meshSpec);
+  } catch (e) {
+    problems.add(['mesh', meshSpec.file !== undefined ? 'file' : 'shape'], (e as Error).message);
+    problems.fail(file);
+    throw e;
+  }
+  const mesh = loaded.mesh;
+  const n = mesh.positions.length / 3;
+  const nS = species.length;
+  const kin = kinetics!;
+
+  // ---- parameters: constants first (field formulas may use them), then fields
+  const fieldValue = (value: FieldValue, path: (string | number)[], constants: Record<string, number>): number | Float64Array | undefined => {
+    if (typeof value === 'number') return value;
+    if (typeof value === 'string') {
+      try {
+        return evaluateSurfaceFormula(value, mesh, constants);
+      } catch (e) {
+        if (!(e instanceof FormulaError)) throw e;
+        problems.add(path, e.message);
+        return undefined;
+      }
+    }
+    const data = loaded.vertexData[value.vertexData];
+    if (!data) {
+      const names = Object.keys(loaded.vertexData);
+      problems.add(path, `the mesh has no per-vertex value "${value.vertexData}"; ${names.length ? `it has ${names.join(', ')}` : 'it carries no per-vertex values (PLY files can, as extra vertex properties)'}`);
+      return undefined;
+    }
+    return data;
+  };
+  const constants: Record<string, number> = {};
+  for (const [name, v] of Object.entries(parameterSpec)) if (typeof v === 'number') constants[name] = v;
+  const paramValues: (number | Float64Array)[] = [];
+  for (const [name, v] of Object.entries(parameterSpec)) {
+    const path = ['kinetics', 'parameters', name];
+    const r = typeof v === 'number' ? v : fieldValue(v, path, constants);
+    if (r === undefined) { paramValues.push(0); continue; }
+    if (typeof r === 'number') constants[name] = r;
+    paramValues.push(r);
+  }
+
+  // ---- diffusion: the model's defaults (which may name parameters), overridden per species
+  const diffusionSpec: Record<string, FieldValue> = {};
+  const diffusion: (number | Float64Array)[] = [];
+  for (const s of species) {
+    const v = sc.diffusion?.[s] ?? model?.diffusion[s];
+    const path = sc.diffusion?.[s] !== undefined ? ['diffusion', s] : ['kinetics'];
+    if (v === undefined) {
+      problems.add(['diffusion'], `no diffusion coefficient for species "${s}" (write ${s}: 0 for one that does not move)`);
+      diffusion.push(0);
+      continue;
+    }
+    diffusionSpec[s] = v;
+    const d = fieldValue(v, path, constants);
+    if (d === undefined) { diffusion.push(0); continue; }
+    if (typeof d === 'number') {
+      if (!(d >= 0) || !Number.isFinite(d)) problems.add(path, `diffusion of ${s} must be ≥ 0, got ${d}`);
+    } else {
+      let worst = -1;
+      for (let i = 0; i < n; i++) if (!(d[i] >= 0) || !Number.isFinite(d[i])) { worst = i; break; }
+      if (worst >= 0) problems.add(path, `diffusion of ${s} must be ≥ 0 everywhere; it is ${d[worst]} at vertex ${worst}`);
+    }
+    diffusion.push(d);
+  }
+  problems.fail(file);
+
+  const system: ReactionDiffusionSystem = { mesh, kinetics: kin, parameters: paramValues, diffusion };
+  const seed = sc.seed ?? DEFAULT_SEED;
+
+  // ---- initial state
+  const initial = new Float64Array(n * nS);
+  const init = sc.initial ?? {};
+  const steadyIndex = init.steadyState ?? 0;
+  const anyFieldParam = paramValues.some((p) => typeof p !== 'number');
+  const steadyAt = (i: number): number[] | undefined => {
+    if (!model?.steadyStates) return undefined;
+    const p: Record<string, number> = {};
+    Object.keys(parameterSpec).forEach((name, j) => {
+      const v = paramValues[j];
+      p[name] = typeof v === 'number' ? v : v[i];
+    });
+    return model.steadyStates(p)[steadyIndex];
+  };
+  const valuesSpec = init.values ?? 'steady';
+  const wantsSteady = valuesSpec === 'steady' || Object.values(valuesSpec).includes('steady');
+  let uniformSteady: number[] | undefined;
+  if (wantsSteady) {
+    if (!model?.steadyStates) {
+      problems.add(['initial', 'values'], `your own kinetics has no closed-form steady state here: give a starting value per species (values: {${species.map((s) => `${s}: 1`).join(', ')}})`);
+    } else {
+      uniformSteady = steadyAt(0);
+      const count = model.steadyStates(constants).length;
+      if (!uniformSteady) problems.add(['initial', init.steadyState !== undefined ? 'steadyState' : 'values'], `${model.title} has ${count} homogeneous steady state${count === 1 ? '' : 's'} for these parameters; steadyState ${steadyIndex} does not exist`);
+    }
+  }
+  if (init.from !== undefined) {
+    if (!env.loadState) problems.add(['initial', 'from'], 'starting from a previous run is not available here');
+    else {
+      try {
+        const prev = env.loadState(init.from);
+        for (let s = 0; s < nS; s++) {
+          const v = prev.values[species[s]];
+          if (!v) { problems.add(['initial', 'from'], `the previous run has no species "${species[s]}" (it has ${prev.species.join(', ')})`); break; }
+          if (v.length !== n) { problems.add(['initial', 'from'], `the previous run has ${v.length} vertices, this mesh ${n}: start from a run on the same mesh`); break; }
+          for (let i = 0; i < n; i++) initial[i * nS + s] = v[i];
+        }
+      } catch (e) {
+        problems.add(['initial', 'from'], (e as Error).message);
+      }
+    }
+  } else if (problems.list.length === 0) {
+    for (let s = 0; s < nS; s++) {
+      const v = valuesSpec === 'steady' ? 'steady' : valuesSpec[species[s]] ?? (wantsSteady ? 'steady' : undefined);
+      const path = ['initial', 'values', species[s]];
+      if (v === undefined) {
+        problems.add(['initial', 'values'], `no starting value for species "${species[s]}"`);
+      } else if (v === 'steady') {
+        for (let i = 0; i < n; i++) initial[i * nS + s] = anyFieldParam ? (steadyAt(i)?.[s] ?? NaN) : uniformSteady![s];
+      } else {
+        const f = fieldValue(v, path, constants);
+        if (f !== undefined) for (let i = 0; i < n; i++) initial[i * nS + s] = typeof f === 'number' ? f : f[i];
+      }
+    }
+    if (valuesSpec !== 'steady') {
+      for (const name of Object.keys(valuesSpec)) if (!species.includes(name)) problems.add(['initial', 'values', name], `"${name}" is not a species (${species.join(', ')})`);
+    }
+  }
+  const rand = seededRandom(seed);
+  if (init.spots) {
+    const sp = init.spots;
+    const centres: number[] = [];
+    const given = [sp.count !== undefined, sp.centres !== undefined, sp.vertices !== undefined].filter(Boolean).length;
+    if (given !== 1) problems.add(['initial', 'spots'], 'give exactly one of count, centres or vertices');
+    for (const name of Object.keys(sp.values)) if (!species.includes(name)) problems.add(['initial', 'spots', 'values', name], `"${name}" is not a species (${species.join(', ')})`);
+    if (sp.vertices) sp.vertices.forEach((v, j) => { if (v >= n) problems.add(['initial', 'spots', 'vertices', j], `vertex ${v} does not exist (the mesh has ${n}, numbered from 0)`); else centres.push(v); });
+    if (sp.count !== undefined) for (let j = 0; j < sp.count; j++) centres.push(Math.min(n - 1, Math.floor(rand() * n)));
+    const p = mesh.positions;
+    for (const c of sp.centres ?? []) {
+      let best = 0, bestD = Infinity;
+      for (let i = 0; i < n; i++) {
+        const d = (p[3 * i] - c[0]) ** 2 + (p[3 * i + 1] - c[1]) ** 2 + (p[3 * i + 2] - c[2]) ** 2;
+        if (d < bestD) { bestD = d; best = i; }
+      }
+      centres.push(best);
+    }
+    const r2 = sp.radius * sp.radius;
+    for (const c of centres) {
+      const cx = p[3 * c], cy = p[3 * c + 1], cz = p[3 * c + 2];
+      for (let i = 0; i < n; i++) {
+        if ((p[3 * i] - cx) ** 2 + (p[3 * i + 1] - cy) ** 2 + (p[3 * i + 2] - cz) ** 2 > r2) continue;
+        for (const [name, value] of Object.entries(sp.values)) {
+          const s = species.indexOf(name);
+          if (s >= 0) initial[i * nS + s] = value;
+        }
+      }
+    }
+  }
+  if (init.noise !== undefined) {
+    const amp = typeof init.noise === 'number' ? init.noise : init.noise.amplitude;
+    const which = typeof init.noise === 'number' || !init.noise.species ? species : init.noise.species;
+    for (const name of which) if (!species.includes(name)) problems.add(['initial', 'noise', 'species'], `"${name}" is not a species (${species.join(', ')})`);
+    const idx = which.map((name) => species.indexOf(name)).filter((s) => s >= 0);
+    for (let i = 0; i < n; i++) for (const s of idx) initial[i * nS + s] += amp * (2 * rand() - 1);
+  }
+  problems.fail(file);
+  for (let i = 0; i < initial.length; i++) {
+    if (!Number.isFinite(initial[i])) {
+      problems.add(['initial'], `the starting value of ${species[i % nS]} at vertex ${Math.floor(i / nS)} is ${initial[i]}; check the formulas and parameters`);
+      problems.fail(file);
+    }
+  }
+
+  // ---- time step
+  const stiffness = cotanStiffness(mesh);
+  const mass = lumpedMass(mesh);
+  const end = sc.time.end;
+  let dt = sc.time.step;
+  let explicitLimit: ExplicitStepLimit | undefined;
+  if (scheme === 'explicit') {
+    explicitLimit = systemExplicitLimit(system, stiffness, mass);
+    if (dt === undefined) {
+      dt = Math.min(0.9 * explicitLimit.safeUpTo, model?.suggestedStep ?? Infinity, end / 10);
+    } else if (dt > explicitLimit.unstableAbove) {
+      problems.add(['time', 'step'], `${dt} is above the explicit scheme's stability limit ${explicitLimit.unstableAbove.toPrecision(3)} on this mesh (2/(D·λmax)); use step ≤ ${explicitLimit.safeUpTo.toPrecision(3)}, or scheme: imex`);
+    } else if (dt > explicitLimit.safeUpTo) {
+      warnings.push(`time.step ${dt} exceeds the explicit scheme's positivity bound ${explicitLimit.safeUpTo.toPrecision(3)} on this mesh: values may oscillate or turn negative; ${explicitLimit.unstableAbove.toPrecision(3)} is certainly unstable`);
+    }
+  } else if (dt === undefined) {
+    if (model?.suggestedStep === undefined) problems.add(['time'], 'missing "step": for your own kinetics give a time step (the implicit–explicit scheme is stable for any step in diffusion, but the reactions set the accuracy)');
+    else dt = Math.min(model.suggestedStep, end / 10);
+  }
+  problems.fail(file);
+  const step = dt!;
+  const steps = Math.max(1, Math.ceil(end / step - 1e-9));
+  if (Math.abs(steps * step - end) > 1e-9 * end) warnings.push(`time.end ${end} is not a whole number of steps of ${step}; the run ends at ${steps * step}`);
+  const every = sc.output?.every ?? end / 20;
+  const everySteps = Math.max(1, Math.round(every / step));
+  if (Math.abs(everySteps * step - every) > 1e-9 * every) warnings.push(`output.every ${every} is not a whole number of steps of ${step}; frames come every ${everySteps} steps (${everySteps * step})`);
+  const output: OutputPlan = { every: everySteps * step, everySteps, colour: colour!, colormap, range, frames: sc.output?.frames ?? true };
+
+  const summary = {
+    name: sc.name ?? file.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, ''),
+    seed,
+    mesh: loaded.source,
+    kinetics: { model: model?.name ?? 'custom', citation: model?.citation, species, reactions, parameters: parameterSpec },
+    diffusion: diffusionSpec,
+    initial: init,
+    time: { scheme, step, end, steps, steadyState: sc.time.steadyState, solver: scheme === 'imex' ? solver : undefined, tolerance: scheme === 'imex' ? sc.time.tolerance ?? 1e-8 : undefined },
+    output,
+    explicitLimit,
+  };
+  return {
+    name: summary.name,
+    seed,
+    mesh,
+    meshSource: loaded.source,
+    meshNotes: loaded.notes,
+    model: model?.name ?? 'custom',
+    kineticsModel: model,
+    species,
+    reactions,
+    parameters: parameterSpec,
+    diffusion: diffusionSpec,
+    kinetics: kin,
+    system,
+    stiffness,
+    mass,
+    initial,
+    scheme,
+    dt: step,
+    end,
+    steps,
+    steadyState: sc.time.steadyState,
+    solver,
+    tolerance: sc.time.tolerance ?? 1e-8,
+    explicitLimit,
+    output,
+    warnings,
+    summary,
+  };
+}
+

@@ -1,0 +1,18 @@
+/**
+ * A formula the tool will not accept, with where in the text the problem sits.
+ * `column` is 1-based, or undefined when the part cannot be located exactly.
+ */
+export class FormulaError extends Error {
+  readonly formula: string;
+  readonly column: number | undefined;
+  readonly reason: string;
+
+  constructor(formula: string, reason: string, column?: number) {
+    const where = column !== undefined ? ` at column ${column}` : '';
+    super(`${reason}${where} in "${formula}"`);
+    this.name = 'FormulaError';
+    this.formula = formula;
+    this.reason = reason;
+    this.column = column;
+  }
+}
