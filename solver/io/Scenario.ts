@@ -75,7 +75,8 @@ export interface TimeSpec {
   end: number;
   /** stop when the relative change per unit time falls below this */
   steadyState?: number;
-  solver?: 'cg' | 'cholesky';
+  /** linear solver of the implicit–explicit scheme; auto: Cholesky up to 60k vertices, CG above */
+  solver?: 'auto' | 'cg' | 'cholesky';
   tolerance?: number;
 }
 
@@ -178,7 +179,7 @@ export const SCENARIO_SCHEMA = {
         step: { type: 'number', exclusiveMinimum: 0 },
         end: { type: 'number', exclusiveMinimum: 0 },
         steadyState: { type: 'number', exclusiveMinimum: 0 },
-        solver: { enum: ['cg', 'cholesky'] },
+        solver: { enum: ['auto', 'cg', 'cholesky'] },
         tolerance: { type: 'number', exclusiveMinimum: 0, maximum: 0.1 },
       },
     },

@@ -132,7 +132,8 @@ export function decodeState(bytes: Uint8Array, file: string): SavedState {
   const count = header.vertexCount * header.species.length;
   const need = start + 8 * count * (header.hasReference ? 2 : 1);
   if (bytes.length !== need) fail(`expected ${need} bytes, found ${bytes.length}`);
-  const copy = bytes.slice(start);
+  const copy = new Uint8Array(bytes.length - start); // own, aligned copy (Node Buffers are views into a pool)
+  copy.set(bytes.subarray(start));
   const state = new Float64Array(copy.buffer, 0, count);
   const reference = header.hasReference ? new Float64Array(copy.buffer, 8 * count, count) : undefined;
   const { hasReference: _drop, ...rest } = header;

@@ -9,7 +9,7 @@ export class FormulaError extends Error {
 
   constructor(formula: string, reason: string, column?: number) {
     const where = column !== undefined ? ` at column ${column}` : '';
-    super(`${reason}${where} in "${formula}"`);
+    super(`in "${formula}"${where}: ${reason}`);
     this.name = 'FormulaError';
     this.formula = formula;
     this.reason = reason;

@@ -109,7 +109,7 @@ export function parseFormula(text: string, symbols: ReadonlySet<string>): MathNo
       case 'IndexNode':
         throw new FormulaError(text, `property or index access "${node.toString()}" is not allowed`, columnOf(text, node.toString()));
       default:
-        throw new FormulaError(text, `${node.type.replace(/Node$/, '').toLowerCase()} "${node.toString()}" is not allowed: only arithmetic on numbers, names and functions`);
+        throw new FormulaError(text, `${node.type.replace(/Node$/, '').toLowerCase()} "${node.toString().replace(/\s+/g, ' ')}" is not allowed: only arithmetic on numbers, names and functions`);
     }
   };
   visit(root);

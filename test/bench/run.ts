@@ -2,7 +2,8 @@
  * `npm run bench`: timings of the surface-FEM foundation on geodesic spheres of
  * ~10k / 40k / 160k vertices, and the largest shapes the generators build.
  * Set BENCH_SIZES="32 64" (icosphere frequencies) to run a subset; BENCH_EIGEN=0
- * skips the eigen-solves. Machines are noisy: compare ratios within one run.
+ * skips the eigen-solves, BENCH_RD=0 the reaction–diffusion stepping, BENCH_FEM=0
+ * the assembly table. Machines are noisy: compare ratios within one run.
  */
 import { icosphere } from '../../meshes/shapes/icosphere.ts';
 import { SHAPES, buildShape } from '../../meshes/shapes/index.ts';
@@ -12,6 +13,7 @@ import { consistentMass } from '../../solver/fem/consistentMass.ts';
 import { lumpedMass } from '../../solver/fem/lumpedMass.ts';
 import { vertexSparsityPattern } from '../../solver/fem/vertexSparsityPattern.ts';
 import { laplaceBeltramiEigenpairs } from '../../solver/fem/laplaceBeltramiEigenpairs.ts';
+import { reactionDiffusionBench } from './reactionDiffusion.ts';
 
 const sizes = (process.env.BENCH_SIZES ?? '32 64 128').split(/\s+/).filter(Boolean).map(Number);
 const eigen = process.env.BENCH_EIGEN !== '0';
@@ -27,6 +29,7 @@ function best(f: () => void, reps = 3): number {
   return b;
 }
 
+if (process.env.BENCH_FEM !== '0') {
 console.log('Surface FEM assembly and eigenpairs on unit geodesic spheres');
 console.log('| vertices | topology + pattern | K + M + lumped (reassembly) | 50 eigenpairs | nnz(L) |');
 console.log('|---:|---:|---:|---:|---:|');
@@ -50,6 +53,9 @@ for (const nu of sizes) {
   }
   console.log(`| ${n} | ${ms(tTopo)} | ${ms(tAsm)} | ${eig} | ${fill} |`);
 }
+}
+
+if (process.env.BENCH_RD !== '0') reactionDiffusionBench(sizes);
 
 if (process.env.BENCH_SHAPES !== '0') {
   console.log('\nShapes at a 200k-vertex target');

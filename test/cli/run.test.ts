@@ -1,0 +1,248 @@
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync, readdirSync, copyFileSync } from 'node:fs';
+import { spawn } from 'node:child_process';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { main } from '../../solver/cli/main.ts';
+import { runScenarioFile } from '../../solver/cli/runScenario.ts';
+import { loadMeshFile } from '../../solver/io/meshFiles.ts';
+import { decodeState, speciesFromProperties } from '../../solver/io/runFiles.ts';
+import { thresholdComponents } from '../../solver/analysis/thresholdComponents.ts';
+import { meshArea } from '../../solver/mesh/triangleAreas.ts';
+
+async function run(...argv: string[]): Promise<{ code: number; out: string; err: string }> {
+  let out = '', err = '';
+  const o = vi.spyOn(process.stdout, 'write').mockImplementation((s: string | Uint8Array) => { out += String(s); return true; });
+  const e = vi.spyOn(process.stderr, 'write').mockImplementation((s: string | Uint8Array) => { err += String(s); return true; });
+  try {
+    return { code: await main(argv), out, err };
+  } finally {
+    o.mockRestore();
+    e.mockRestore();
+  }
+}
+
+let dir = '';
+beforeAll(() => { dir = mkdtempSync(join(tmpdir(), 'placode-run-')); });
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+function scenario(name: string, text: string): string {
+  const file = join(dir, name);
+  writeFileSync(file, text);
+  return file;
+}
+
+const SMALL = `
+seed: 11
+mesh: {shape: sphere, params: {radius: 0.25}, vertices: 2000}
+kinetics: {model: gray-scott, parameters: {F: 0.03, k: 0.062}}
+initial:
+  spots: {count: 3, radius: 0.05, values: {u: 0.5, v: 0.25}}
+  noise: {amplitude: 0.01, species: [v]}
+time: {scheme: imex, step: 1, end: 300}
+output: {every: 100}
+`;
+
+/** Every file of a run directory except the record, as bytes. */
+function outputs(runDir: string): Record<string, Buffer> {
+  const files: Record<string, Buffer> = {};
+  for (const f of ['final.ply', 'metrics.csv', 'state.bin']) files[f] = readFileSync(join(runDir, f));
+  for (const f of readdirSync(join(runDir, 'frames'))) files[`frames/${f}`] = readFileSync(join(runDir, 'frames', f));
+  return files;
+}
+
+describe('placode run', () => {
+  it('writes record.json, frames, final.ply and metrics.csv, as documented', async () => {
+    const file = scenario('small.yaml', SMALL);
+    const out = join(dir, 'small');
+    const r = await run('run', file, '--out', out, '--progress', 'none');
+    expect(r.err).toMatch(/finished at t=300/);
+    expect(r.code).toBe(0);
+    expect(readdirSync(join(out, 'frames'))).toEqual(['0000.ply', '0001.ply', '0002.ply', '0003.ply']);
+    const record = JSON.parse(readFileSync(join(out, 'record.json'), 'utf8'));
+    expect(record.tool.name).toBe('placode');
+    expect(record.seed).toBe(11);
+    expect(record.mesh.checksum).toMatch(/^sha256:[0-9a-f]{64}$/);
+    expect(record.stop).toMatchObject({ reason: 'end', time: 300, step: 300 });
+    expect(record.resolved.kinetics.parameters).toEqual({ F: 0.03, k: 0.062 });
+    expect(record.resolved.time).toMatchObject({ scheme: 'imex', step: 1, end: 300, solver: 'cholesky' }); // auto: a small mesh is factorised
+    const csv = readFileSync(join(out, 'metrics.csv'), 'utf8').trim().split('\n');
+    expect(csv[0]).toBe('time,step,u_min,u_mean,u_max,u_integral,v_min,v_mean,v_max,v_integral');
+    expect(csv.length).toBe(5);
+    const frame = loadMeshFile(join(out, 'frames', '0003.ply'));
+    const species = speciesFromProperties(frame.vertexData);
+    expect(Object.keys(species)).toEqual(['u', 'v']);
+    // the last metrics row describes the last frame: ∫u dA = Σ m u, mean = ∫u/area
+    const last = csv[4].split(',').map(Number);
+    expect(last[0]).toBe(300);
+    const saved = decodeState(readFileSync(join(out, 'state.bin')), 'state.bin');
+    let vmax = -Infinity;
+    for (let i = 1; i < saved.state.length; i += 2) vmax = Math.max(vmax, saved.state[i]);
+    expect(last[8]).toBe(vmax);
+    // frames carry the species as float32
+    expect(species.v[7]).toBeCloseTo(saved.state[15], 6);
+  });
+
+  it('same scenario and seed twice gives byte-identical outputs', async () => {
+    const file = join(dir, 'small.yaml');
+    await run('run', file, '--out', join(dir, 'again'), '--progress', 'none');
+    const a = outputs(join(dir, 'small')), b = outputs(join(dir, 'again'));
+    expect(Object.keys(b)).toEqual(Object.keys(a));
+    for (const k of Object.keys(a)) expect(b[k].equals(a[k]), k).toBe(true);
+  });
+
+  it('an interrupted run resumes to the same final state as an uninterrupted one', async () => {
+    const out = join(dir, 'interrupted');
+    const first = await runScenarioFile(join(dir, 'small.yaml'), { out, progress: 'none', interruptAfterSteps: 150, log: () => {} });
+    expect(first.reason).toBe('interrupted');
+    expect(JSON.parse(readFileSync(join(out, 'record.json'), 'utf8')).status).toBe('interrupted');
+    expect(existsSync(join(out, 'final.ply'))).toBe(false);
+    const r = await run('run', '--resume', out, '--progress', 'none');
+    expect(r.code).toBe(0);
+    expect(r.err).toMatch(/resuming .* from t=150/);
+    const a = outputs(join(dir, 'small')), b = outputs(out);
+    for (const k of Object.keys(a)) expect(b[k].equals(a[k]), k).toBe(true);
+    const again = await run('run', '--resume', out);
+    expect(again.code).toBe(2);
+    expect(again.err).toMatch(/already finished/);
+  });
+
+  it('Ctrl-C (SIGINT) stops a real process with its state saved; --resume finishes it identically', async () => {
+    const longer = scenario('longer.yaml', SMALL.replace('end: 300', 'end: 4000').replace('every: 100', 'every: 1000'));
+    const reference = join(dir, 'longer-ref');
+    expect((await run('run', longer, '--out', reference, '--progress', 'none')).code).toBe(0);
+    const out = join(dir, 'longer-int');
+    const bin = join(__dirname, '..', '..', 'solver', 'cli', 'placode.mjs');
+    const child = spawn(process.execPath, [bin, 'run', longer, '--out', out, '--progress', 'lines'], { stdio: ['ignore', 'ignore', 'pipe'] });
+    let err = '';
+    child.stderr.on('data', (d) => {
+      err += String(d);
+      if (/running /.test(err)) setTimeout(() => child.kill('SIGINT'), 500);
+    });
+    const code = await new Promise<number | null>((res) => child.on('exit', res));
+    expect(code, err).toBe(130);
+    expect(err).toMatch(/interrupted at t=.*placode run --resume/s);
+    expect((await run('run', '--resume', out, '--progress', 'none')).code).toBe(0);
+    const a = outputs(reference), b = outputs(out);
+    for (const k of Object.keys(a)) expect(b[k].equals(a[k]), k).toBe(true);
+  }, 60_000);
+
+  it('refuses to overwrite a run directory without --force', async () => {
+    const r = await run('run', join(dir, 'small.yaml'), '--out', join(dir, 'small'));
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(/already holds files; choose a new --out, add --force/);
+  });
+
+  it('Gray–Scott with Pearson\'s D_u = 2e-5, D_v = 1e-5 forms separated spots on a sphere (Pearson, Science 1993)', async () => {
+    // F = 0.03, k = 0.062 lies in the region where Pearson reports self-replicating spots
+    // (his Fig. 2; the exact region boundaries are quoted from memory). Sphere of radius
+    // 0.25: area 0.785, about an eighth of Pearson's 2.5 × 2.5 square.
+    const file = scenario('spots.yaml', `
+seed: 3
+mesh: {shape: sphere, params: {radius: 0.25}, vertices: 5000}
+kinetics: {model: gray-scott, parameters: {F: 0.03, k: 0.062}}
+initial: {spots: {count: 4, radius: 0.04, values: {u: 0.5, v: 0.25}}}
+time: {scheme: explicit, end: 6000}
+output: {every: 1000, frames: false}
+`);
+    const out = join(dir, 'spots');
+    expect((await run('run', file, '--out', out, '--progress', 'none')).code).toBe(0);
+    const final = loadMeshFile(join(out, 'final.ply'));
+    const v = speciesFromProperties(final.vertexData).v;
+    const c = thresholdComponents(final.mesh, v);
+    const area = meshArea(final.mesh);
+    // the four seeds have replicated into many spots …
+    expect(c.patches.length).toBeGreaterThanOrEqual(20);
+    // … each a small, compact patch (a spot, not a stripe or a covering) …
+    for (const p of c.patches) expect(p.area).toBeLessThan(0.02 * area);
+    // … of similar size (self-replicating spots share one size)
+    const areas = c.patches.map((p) => p.area).sort((x, y) => x - y);
+    expect(areas[areas.length - 1] / areas[Math.floor(areas.length / 2)]).toBeLessThan(2);
+  });
+
+  it('a blow-up stops with the time and species named and keeps the last good state', async () => {
+    const file = scenario('blowup.yaml', `
+mesh: {shape: sphere, vertices: 200}
+kinetics: {species: [a], reactions: {a: "a^2"}}
+diffusion: {a: 0.01}
+initial: {values: {a: "1 + 0.1*z"}}
+time: {scheme: explicit, step: 0.01, end: 5}
+`);
+    const out = join(dir, 'blowup');
+    const r = await run('run', file, '--out', out, '--progress', 'none');
+    expect(r.code).toBe(3);
+    expect(r.err).toMatch(/blow-up at t=[0-9.]+ \(step \d+\): a became (Infinity|NaN) at vertex \d+/);
+    const record = JSON.parse(readFileSync(join(out, 'record.json'), 'utf8'));
+    expect(record.stop.reason).toBe('blow-up');
+    const saved = decodeState(readFileSync(join(out, 'state.bin')), 'state.bin');
+    expect(saved.state.every(Number.isFinite)).toBe(true);
+    expect(saved.step).toBe(record.stop.step);
+    expect(existsSync(join(out, 'final.ply'))).toBe(true);
+  });
+
+  it('stops at steady state when asked', async () => {
+    const file = scenario('steady.yaml', `
+mesh: {shape: sphere, vertices: 500}
+kinetics: {model: schnakenberg, parameters: {gamma: 1}}
+initial: {noise: 0.01}
+time: {step: 0.01, end: 1000, steadyState: 1e-6}
+output: {every: 5, frames: false}
+`);
+    const out = join(dir, 'steady');
+    const r = await run('run', file, '--out', out, '--progress', 'none');
+    expect(r.code).toBe(0);
+    expect(r.err).toMatch(/steady state at t=/);
+    const record = JSON.parse(readFileSync(join(out, 'record.json'), 'utf8'));
+    expect(record.stop.reason).toBe('steady-state');
+    expect(record.stop.time).toBeLessThan(1000);
+  });
+});
+
+describe('bad scenarios each get their own clear error', () => {
+  const cases: [string, string, RegExp][] = [
+    ['unknown model', 'mesh: {shape: sphere}\nkinetics: {model: grey-scott}\ntime: {end: 1}\n', /line 2:\d+ +kinetics\.model: unknown model "grey-scott" \(did you mean "gray-scott"\?\)/],
+    ['wrong type', 'mesh: {shape: sphere}\nkinetics: {model: gray-scott}\ntime: {end: "soon"}\n', /time\.end: must be a number, got text "soon"/],
+    ['negative diffusion', 'mesh: {shape: sphere, vertices: 100}\nkinetics: {model: gray-scott}\ndiffusion: {u: -1}\ntime: {end: 1}\n', /diffusion\.u: diffusion of u must be ≥ 0, got -1/],
+    ['negative diffusion field', 'mesh: {shape: sphere, vertices: 100}\nkinetics: {model: gray-scott}\ndiffusion: {v: "z"}\ntime: {end: 1}\n', /diffusion\.v: diffusion of v must be ≥ 0 everywhere; it is -?[0-9.e-]+ at vertex \d+/],
+    ['malformed formula', 'mesh: {shape: sphere}\nkinetics: {species: [a], reactions: {a: "a*(1 - a"}}\ntime: {end: 1, step: 0.1}\n', /kinetics\.reactions\.a: in "a\*\(1 - a" at column 10: cannot parse: Parenthesis \) expected/],
+    ['unsafe formula', 'mesh: {shape: sphere}\nkinetics: {species: [a], reactions: {a: "a.constructor"}}\ntime: {end: 1, step: 0.1}\n', /kinetics\.reactions\.a: in "a\.constructor" at column 1: property or index access "a\.constructor" is not allowed/],
+    ['unknown symbol', 'mesh: {shape: sphere}\nkinetics: {species: [a], reactions: {a: "a*r"}}\ntime: {end: 1, step: 0.1}\n', /kinetics\.reactions\.a: in "a\*r" at column 3: unknown name "r"; allowed names: a, t, x, y, z/],
+    ['missing mesh file', 'mesh: {file: nowhere.ply}\nkinetics: {model: gray-scott}\ntime: {end: 1}\n', /mesh\.file: .*nowhere\.ply.*no such file/],
+    ['unknown shape', 'mesh: {shape: sphear}\nkinetics: {model: gray-scott}\ntime: {end: 1}\n', /mesh\.shape: unknown shape "sphear"/],
+    ['unknown key', 'mesh: {shape: sphere}\nkinetics: {model: gray-scott}\ntime: {end: 1, stp: 2}\n', /time\.stp: unknown key \(did you mean "step"\?\)/],
+    ['unknown parameter', 'mesh: {shape: sphere}\nkinetics: {model: gray-scott, parameters: {f: 0.03}}\ntime: {end: 1}\n', /kinetics\.parameters\.f: Gray–Scott has no parameter "f" \(did you mean "F"\?\)/],
+    ['missing section', 'mesh: {shape: sphere}\nkinetics: {model: gray-scott}\n', /\(top level\): missing "time"/],
+    ['not YAML', 'mesh: [sphere\nkinetics: 1\n', /not valid YAML/],
+    ['explicit step too large', 'mesh: {shape: sphere, vertices: 3000}\nkinetics: {model: schnakenberg}\ntime: {scheme: explicit, step: 0.1, end: 1}\n', /time\.step: 0\.1 is above the explicit scheme's stability limit/],
+    ['no steady state for own kinetics', 'mesh: {shape: sphere, vertices: 100}\nkinetics: {species: [a], reactions: {a: "1 - a"}}\ndiffusion: {a: 1}\ntime: {end: 1, step: 0.1}\n', /initial\.values: your own kinetics has no closed-form steady state/],
+    ['unknown vertex data', 'mesh: {shape: sphere, vertices: 100}\nkinetics: {model: gray-scott, parameters: {F: {vertexData: feed}}}\ntime: {end: 1}\n', /kinetics\.parameters\.F: the mesh has no per-vertex value "feed"/],
+  ];
+  for (const [what, text, pattern] of cases) {
+    it(what, async () => {
+      const file = scenario(`bad-${what.replace(/\W+/g, '-')}.yaml`, text);
+      const r = await run('run', file, '--out', join(dir, 'never'));
+      expect(r.code, r.err).toBe(1);
+      expect(r.err).toMatch(pattern);
+      expect(r.err).not.toMatch(/\n\s+at /); // no stack trace
+      expect(existsSync(join(dir, 'never'))).toBe(false);
+    });
+  }
+});
+
+describe('shipped example scenarios', () => {
+  const examples = join(__dirname, '..', '..', 'meshes', 'examples');
+  for (const name of readdirSync(examples).filter((f) => /\.ya?ml$/.test(f))) {
+    it(`${name} checks cleanly and runs its first frames`, async () => {
+      const r = await run('run', join(examples, name), '--check');
+      expect(r.code, r.err).toBe(0);
+      const plan = JSON.parse(r.out);
+      expect(plan.warnings).toEqual([]);
+      // a short run of the same scenario: copy it with an early end
+      const short = join(dir, `short-${name}`);
+      copyFileSync(join(examples, name), short);
+      writeFileSync(short, readFileSync(short, 'utf8').replace(/\n  end: [0-9.e+]+/, `\n  end: ${2 * plan.time.step}`).replace(/mesh:\n/, 'mesh:\n').replace(/file: /, `file: ${examples}/`));
+      const ran = await run('run', short, '--out', join(dir, `ran-${name}`), '--progress', 'none');
+      expect(ran.code, ran.err).toBe(0);
+    });
+  }
+});
