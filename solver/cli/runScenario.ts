@@ -7,6 +7,7 @@ import { writeFileAtomic } from '../io/meshFiles.ts';
 import { RUN_FILES, frameName, encodeFrame, stateMetrics, metricsHeader, metricsRow, encodeState, decodeState, type SavedState } from '../io/runFiles.ts';
 import { ReactionDiffusionStepper } from '../integrate/ReactionDiffusionStepper.ts';
 import { meshArea } from '../mesh/triangleAreas.ts';
+import { forgetMeshTopology } from '../mesh/meshTopology.ts';
 import { nodeScenarioEnvironment, meshChecksum } from './scenarioEnvironment.ts';
 import { UsageError } from './UsageError.ts';
 import { VERSION } from './version.ts';
@@ -156,7 +157,9 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   const { dt, steps: lastStep } = r;
   const every = r.output.everySteps;
   const checksum = record.mesh.checksum;
-  const stepper = new ReactionDiffusionStepper(r.system, { scheme: r.scheme, dt, solver: r.solver, tolerance: r.tolerance }, { stiffness: r.stiffness, mass: r.mass });
+  const stepper = new ReactionDiffusionStepper(r.system, { scheme: r.scheme, dt, solver: r.solver, tolerance: r.tolerance });
+  forgetMeshTopology(r.mesh); // the stepper holds all it needs; free edges, adjacency and the CSR pattern
+  const mass = stepper.mass;
   stepper.setState(saved ? saved.state : r.initial);
   let step = saved?.step ?? 0;
   let nextFrame = saved?.nextFrame ?? 0;
@@ -182,7 +185,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   const emit = (state: Float64Array, atStep: number, frame: boolean) => {
     const tw = performance.now();
     const lastRow = metricRows[metricRows.length - 1];
-    if (lastRow === undefined || Number(lastRow.split(',')[1]) !== atStep) metricRows.push(metricsRow(atStep * dt, atStep, stateMetrics(state, nS, r.mass)));
+    if (lastRow === undefined || Number(lastRow.split(',')[1]) !== atStep) metricRows.push(metricsRow(atStep * dt, atStep, stateMetrics(state, nS, mass)));
     writeFileAtomic(join(out, RUN_FILES.metrics), [metricsHeader(r.species), ...metricRows].join('\n') + '\n', true);
     if (frame && r.output.frames) {
       const name = frameName(nextFrame);

@@ -56,7 +56,6 @@ export class ReactionDiffusionStepper {
   private readonly explicitKernel?: ExplicitKernel;
   private readonly rhsKernel?: ImexRhsKernel;
   private readonly cg?: FusedCgSolver;
-  private readonly rhs?: Float64Array;
   private readonly work?: { r: Float64Array; p: Float64Array; q: Float64Array; inverseDiagonal: Float64Array };
   private readonly factors?: { factor: SparseCholesky; species: number[] }[];
   private readonly column?: Float64Array;
@@ -116,7 +115,6 @@ export class ReactionDiffusionStepper {
       this.explicitKernel = compileExplicitKernel(layout);
     } else {
       this.rhsKernel = compileImexRhsKernel(layout);
-      this.rhs = new Float64Array(n * nS);
       if (this.options.solver === 'cholesky') {
         this.factors = this.buildFactors(csrOf, weightSet, mass);
         this.column = new Float64Array(n);
@@ -181,11 +179,11 @@ export class ReactionDiffusionStepper {
     if (this.explicitKernel) {
       check = this.explicitKernel(n, this.layout, this.sets, this.current, this.other, dt, t, this.coefficient, this.constants, this.fields, positions);
     } else {
-      check = this.rhsKernel!(n, this.mass, this.current, this.rhs!, this.other, dt, t, this.constants, this.fields, positions);
+      check = this.rhsKernel!(n, this.current, this.other, dt, t, this.constants, this.fields, positions);
       if (Number.isFinite(check)) {
         if (this.cg) {
           const w = this.work!;
-          this.totalIterations += this.cg(n, this.layout, this.sets, this.mass, this.coefficient, w.inverseDiagonal, this.rhs!, this.other, w.r, w.p, w.q, this.options.tolerance, this.options.maxIterations, this.lastIterations);
+          this.totalIterations += this.cg(n, this.layout, this.sets, this.mass, this.coefficient, w.inverseDiagonal, this.other, w.r, w.p, w.q, this.options.tolerance, this.options.maxIterations, this.lastIterations);
         } else {
           this.solveFactored();
         }
@@ -203,10 +201,10 @@ export class ReactionDiffusionStepper {
 
   private solveFactored(): void {
     const n = this.vertexCount, nS = this.speciesCount;
-    const col = this.column!, sol = this.solution!, rhs = this.rhs!, x = this.other;
+    const col = this.column!, sol = this.solution!, x = this.other, m = this.mass;
     for (const { factor, species } of this.factors!) {
       for (const s of species) {
-        for (let i = 0; i < n; i++) col[i] = rhs[i * nS + s];
+        for (let i = 0; i < n; i++) col[i] = m[i] * x[i * nS + s]; // right-hand side M·(U + dt·F(U))
         factor.solve(col, sol);
         for (let i = 0; i < n; i++) x[i * nS + s] = sol[i];
       }
@@ -217,7 +215,7 @@ export class ReactionDiffusionStepper {
   bytes(): number {
     const arrays: (ArrayBufferView | undefined)[] = [
       this.layout.columns, this.layout.overflowOffsets, this.layout.overflowColumns, this.mass, this.current, this.other,
-      this.rhs, this.work?.r, this.work?.p, this.work?.q, this.work?.inverseDiagonal, this.column, this.solution,
+      this.work?.r, this.work?.p, this.work?.q, this.work?.inverseDiagonal, this.column, this.solution,
       ...this.fields, ...this.sets.flatMap((s) => [s.diagonal, s.weights, s.overflow]),
     ];
     let total = arrays.reduce((acc, a) => acc + (a?.byteLength ?? 0), 0);

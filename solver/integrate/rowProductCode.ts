@@ -21,7 +21,11 @@ export function weightSetHoist(plan: RowProductPlan): string {
   return sets.map((g) => `const diagonal${g} = sets[${g}].diagonal, weights${g} = sets[${g}].weights, overflow${g} = sets[${g}].overflow;\n`).join('');
 }
 
-export function rowProductCode(plan: RowProductPlan, vector: string): string {
+/**
+ * `own[s]`, when given, names a local already holding `vector[b + s]` (the
+ * row's own value), saving its reload.
+ */
+export function rowProductCode(plan: RowProductPlan, vector: string, own?: readonly string[]): string {
   const W = plan.width;
   const active = plan.weightSet.map((g, s) => [g, s] as const).filter(([g]) => g >= 0);
   if (!active.length) return '';
@@ -30,7 +34,7 @@ export function rowProductCode(plan: RowProductPlan, vector: string): string {
   for (let k = 0; k < W; k++) code += `const j${k} = columns[rw${k ? ` + ${k}` : ''}];\n`;
   for (const g of sets) for (let k = 0; k < W; k++) code += `const w${g}_${k} = weights${g}[rw${k ? ` + ${k}` : ''}];\n`;
   for (const [g, s] of active) {
-    const terms = [`diagonal${g}[i] * ${vector}[b + ${s}]`];
+    const terms = [`diagonal${g}[i] * ${own ? own[s] : `${vector}[b + ${s}]`}`];
     for (let k = 0; k < W; k++) terms.push(`w${g}_${k} * ${vector}[j${k}${s ? ` + ${s}` : ''}]`);
     code += `let a${s} = ${terms.join(' + ')};\n`;
   }

@@ -26,12 +26,12 @@ export type ExplicitKernel = (
 ) => number;
 
 /**
- * Right-hand side of the implicit–explicit step with lumped mass:
- * B_i = m_i·(U_i + dt·f(U_i)), and the explicit prediction U_i + dt·f(U_i)
- * into X as the solver's starting guess. Returns Σ B (non-finite iff any is).
+ * Explicit half of the implicit–explicit step: G_i = U_i + dt·f(U_i). The
+ * implicit half solves (M + dt·D·K)U' = M·G with G as the starting guess, so
+ * G is all the right-hand side needs. Returns Σ G (non-finite iff any is).
  */
 export type ImexRhsKernel = (
-  n: number, mass: Float64Array, state: Float64Array, rhs: Float64Array, guess: Float64Array, dt: number, t: number,
+  n: number, state: Float64Array, guess: Float64Array, dt: number, t: number,
   constants: Float64Array, fields: readonly (Float64Array | undefined)[], positions: Float64Array,
 ) => number;
 
@@ -68,7 +68,8 @@ export function compileExplicitKernel(layout: KernelLayout): ExplicitKernel {
   const rates = layout.kinetics.rateCode(names);
   let code = `"use strict";\n${LAYOUT_HOIST}${weightSetHoist(layout.rows)}${hoist}`;
   for (let s = 0; s < nS; s++) code += `const c${s} = c[${s}];\n`;
-  code += `let check = 0;\nfor (let i = 0; i < n; i++) {\nconst b = i * ${nS};\n${load}${rowProductCode(layout.rows, 'U')}`;
+  const own = Array.from({ length: nS }, (_, s) => `u${s}`);
+  code += `let check = 0;\nfor (let i = 0; i < n; i++) {\nconst b = i * ${nS};\n${load}${rowProductCode(layout.rows, 'U', own)}`;
   for (let s = 0; s < nS; s++) {
     const diff = layout.rows.weightSet[s] < 0 ? '' : ` - c${s} * a${s}`;
     code += `const o${s} = u${s} + dt * ${rates[s]}${diff};\nO[b + ${s}] = o${s};\n`;
@@ -82,10 +83,8 @@ export function compileImexRhsKernel(layout: KernelLayout): ImexRhsKernel {
   const nS = layout.kinetics.species.length;
   const { names, hoist, load } = reactionLocals(layout);
   const rates = layout.kinetics.rateCode(names);
-  let code = `"use strict";\n${hoist}let check = 0;\nfor (let i = 0; i < n; i++) {\nconst b = i * ${nS};\nconst m = mass[i];\n${load}`;
-  for (let s = 0; s < nS; s++) {
-    code += `const g${s} = u${s} + dt * ${rates[s]};\nX[b + ${s}] = g${s};\nconst r${s} = m * g${s};\nB[b + ${s}] = r${s};\ncheck += r${s};\n`;
-  }
+  let code = `"use strict";\n${hoist}let check = 0;\nfor (let i = 0; i < n; i++) {\nconst b = i * ${nS};\n${load}`;
+  for (let s = 0; s < nS; s++) code += `const g${s} = u${s} + dt * ${rates[s]};\nX[b + ${s}] = g${s};\ncheck += g${s};\n`;
   code += '}\nreturn check;';
-  return new Function('n', 'mass', 'U', 'B', 'X', 'dt', 't', 'constants', 'fields', 'positions', code) as ImexRhsKernel;
+  return new Function('n', 'U', 'X', 'dt', 't', 'constants', 'fields', 'positions', code) as ImexRhsKernel;
 }

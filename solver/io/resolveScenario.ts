@@ -12,7 +12,6 @@ import type { ReactionDiffusionSystem } from '../integrate/ReactionDiffusionSyst
 import { systemExplicitLimit, type ExplicitStepLimit } from '../integrate/explicitStepLimit.ts';
 import { cotanStiffness } from '../fem/cotanStiffness.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
-import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
 import { seededRandom } from '../linalg/seededRandom.ts';
 import { COLORMAP_NAMES, type ColormapName } from './colormap.ts';
 
@@ -56,8 +55,6 @@ export interface ResolvedScenario {
   diffusion: Record<string, FieldValue>;
   kinetics: CompiledKinetics;
   system: ReactionDiffusionSystem;
-  stiffness: CsrMatrix;
-  mass: Float64Array;
   initial: Float64Array;
   scheme: 'imex' | 'explicit';
   dt: number;
@@ -404,8 +401,6 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     diffusion: diffusionSpec,
     kinetics: kin,
     system,
-    stiffness,
-    mass,
     initial,
     scheme,
     dt: step,

@@ -45,6 +45,15 @@ export interface MeshTopology {
 const cache = new WeakMap<Uint32Array, MeshTopology>();
 
 /** The cached topology of `mesh` (see `MeshTopology` for the layout). */
+/**
+ * Drop the cached topology (and with it the cached sparsity pattern) of a
+ * connectivity, to free their memory once the operators are built; the next
+ * `meshTopology` call rebuilds them.
+ */
+export function forgetMeshTopology(mesh: Mesh): void {
+  cache.delete(mesh.triangles);
+}
+
 export function meshTopology(mesh: Mesh): MeshTopology {
   const nV = mesh.positions.length / 3;
   const hit = cache.get(mesh.triangles);
