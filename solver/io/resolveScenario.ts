@@ -84,11 +84,15 @@ class Problems {
 
 const DEFAULT_SEED = 1;
 /**
- * Below this size the implicit–explicit scheme factorises M + dt·D·K once
- * (fast and insensitive to element quality, ~0.7 kB per vertex per distinct D);
- * above it, Jacobi-CG keeps memory near 200 bytes per vertex.
+ * `solver: auto` factorises M + dt·D·K once (Cholesky: cost independent of the
+ * conditioning, ~0.7 kB per vertex per distinct D) only on meshes up to this
+ * size and only when Jacobi-CG would need many iterations, i.e. when
+ * dt·D·λ_max(M⁻¹K) exceeds AUTO_CHOLESKY_STIFFNESS (CG iterations grow like
+ * its square root); otherwise warm-started CG is faster and needs ~200 bytes
+ * per vertex.
  */
 export const AUTO_CHOLESKY_VERTICES = 60_000;
+export const AUTO_CHOLESKY_STIFFNESS = 100;
 
 /**
  * Check a parsed scenario against the models, formulas and mesh, fill in
@@ -177,7 +181,6 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   const mesh = loaded.mesh;
   const n = mesh.positions.length / 3;
   const requested = sc.time.solver ?? 'auto';
-  const solver: 'cg' | 'cholesky' = requested === 'auto' ? (n <= AUTO_CHOLESKY_VERTICES ? 'cholesky' : 'cg') : requested;
   const nS = species.length;
   const kin = kinetics!;
 
@@ -369,6 +372,15 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   }
   problems.fail(file);
   const step = dt!;
+  let solver: 'cg' | 'cholesky' = requested === 'auto' ? 'cg' : requested;
+  let solverReason = requested === 'auto' ? 'auto' : 'requested';
+  if (scheme === 'imex' && requested === 'auto' && n <= AUTO_CHOLESKY_VERTICES) {
+    const stiffnessRatio = step * systemExplicitLimit(system, stiffness, mass).largestRate;
+    if (stiffnessRatio > AUTO_CHOLESKY_STIFFNESS) {
+      solver = 'cholesky';
+      solverReason = `auto: dt·D·λmax = ${stiffnessRatio.toPrecision(3)} > ${AUTO_CHOLESKY_STIFFNESS} would slow CG`;
+    } else solverReason = `auto: dt·D·λmax = ${stiffnessRatio.toPrecision(3)}, CG converges in few iterations`;
+  }
   const steps = Math.max(1, Math.ceil(end / step - 1e-9));
   if (Math.abs(steps * step - end) > 1e-9 * end) warnings.push(`time.end ${end} is not a whole number of steps of ${step}; the run ends at ${steps * step}`);
   const every = sc.output?.every ?? end / 20;
@@ -383,7 +395,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     kinetics: { model: model?.name ?? 'custom', citation: model?.citation, species, reactions, parameters: parameterSpec },
     diffusion: diffusionSpec,
     initial: init,
-    time: { scheme, step, end, steps, steadyState: sc.time.steadyState, solver: scheme === 'imex' ? solver : undefined, tolerance: scheme === 'imex' ? sc.time.tolerance ?? 1e-8 : undefined },
+    time: { scheme, step, end, steps, steadyState: sc.time.steadyState, solver: scheme === 'imex' ? solver : undefined, solverChoice: scheme === 'imex' ? solverReason : undefined, tolerance: scheme === 'imex' ? sc.time.tolerance ?? 1e-8 : undefined },
     output,
     explicitLimit,
   };

@@ -65,7 +65,7 @@ describe('placode run', () => {
     expect(record.mesh.checksum).toMatch(/^sha256:[0-9a-f]{64}$/);
     expect(record.stop).toMatchObject({ reason: 'end', time: 300, step: 300 });
     expect(record.resolved.kinetics.parameters).toEqual({ F: 0.03, k: 0.062 });
-    expect(record.resolved.time).toMatchObject({ scheme: 'imex', step: 1, end: 300, solver: 'cholesky' }); // auto: a small mesh is factorised
+    expect(record.resolved.time).toMatchObject({ scheme: 'imex', step: 1, end: 300, solver: 'cg' }); // auto: dt·D·λmax is small, CG converges fast
     const csv = readFileSync(join(out, 'metrics.csv'), 'utf8').trim().split('\n');
     expect(csv[0]).toBe('time,step,u_min,u_mean,u_max,u_integral,v_min,v_mean,v_max,v_integral');
     expect(csv.length).toBe(5);
