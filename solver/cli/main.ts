@@ -12,7 +12,6 @@ import { UsageError } from './UsageError.ts';
 import { runDemo } from './demo.ts';
 import { VERSION } from './version.ts';
 import { MODELS } from '../kinetics/models/index.ts';
-import { ScenarioError } from '../io/ScenarioError.ts';
 import { runScenarioFile, resumeRun, checkScenario } from './runScenario.ts';
 
 const collect = (value: string, previous: string[] = []) => previous.concat([value]);
@@ -167,7 +166,7 @@ export async function main(argv: string[]): Promise<number> {
     .option('--json', 'print as JSON')
     .action((o: { json?: boolean }) => {
       if (o.json) {
-        process.stdout.write(JSON.stringify(Object.values(MODELS).map(({ steadyStates: _s, ...m }) => m), null, 2) + '\n');
+        process.stdout.write(JSON.stringify(Object.values(MODELS), null, 2) + '\n'); // steadyStates functions drop out
         return;
       }
       for (const m of Object.values(MODELS)) {
@@ -212,10 +211,6 @@ export async function main(argv: string[]): Promise<number> {
       return e.exitCode === 0 || e.code === 'commander.helpDisplayed' || e.code === 'commander.version' ? 0 : 2;
     }
     const err = e as Error;
-    if (e instanceof ScenarioError) {
-      process.stderr.write(`placode run: ${err.message}\n`);
-      return 1;
-    }
     const cmd = argv.find((a) => !a.startsWith('-')) ?? '';
     process.stderr.write(`placode${cmd ? ' ' + cmd : ''}: ${err.message}\n`);
     if (process.env.PLACODE_DEBUG) process.stderr.write(`${err.stack}\n`);

@@ -167,9 +167,6 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   let referenceStep = saved ? Math.floor(saved.step / every) * every : 0;
   const session: RunRecord['sessions'][number] = { started: new Date().toISOString(), fromStep: step, setupSeconds: (performance.now() - t0) / 1000 };
   record.sessions.push(session);
-  for (const w of r.warnings) log(`warning: ${w}`);
-  for (const note of r.meshNotes) log(`mesh: ${note}`);
-  log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${n} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''} → ${out}`);
 
   let outputSeconds = 0;
   const writeRecord = () => {
@@ -221,7 +218,6 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     return { dir: out, reason, time: atStep * dt, step: atStep, message };
   };
 
-  const progress = makeProgress(options, log, step * dt, lastStep * dt);
   let interrupted = false;
   const onSignal = () => {
     if (interrupted) process.exit(130);
@@ -229,6 +225,10 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   };
   process.on('SIGINT', onSignal);
   process.on('SIGTERM', onSignal);
+  for (const w of r.warnings) log(`warning: ${w}`);
+  for (const note of r.meshNotes) log(`mesh: ${note}`);
+  log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${n} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''} → ${out}`);
+  const progress = makeProgress(options, log, step * dt, lastStep * dt);
   let steppingSeconds = 0;
   try {
     if (!saved) emit(stepper.state, 0, true);

@@ -26,8 +26,3 @@ export function speciesField(state: Float64Array, nS: number, s: number, out?: F
   for (let i = 0; i < n; i++) f[i] = state[i * nS + s];
   return f;
 }
-
-export function setSpeciesField(state: Float64Array, nS: number, s: number, values: ArrayLike<number>): void {
-  const n = state.length / nS;
-  for (let i = 0; i < n; i++) state[i * nS + s] = values[i];
-}
