@@ -127,6 +127,64 @@ describe('placode run', () => {
     for (const k of Object.keys(a)) expect(b[k].equals(a[k]), k).toBe(true);
   }, 60_000);
 
+  it('reads a parameter from per-vertex mesh data, seeds spots at points and vertices, and starts from a previous run', async () => {
+    // a mesh file carrying a per-vertex feed rate, as a measured morphogen map would
+    const { buildShape } = await import('../../meshes/shapes/index.ts');
+    const { saveMeshFile } = await import('../../solver/io/meshFiles.ts');
+    const { mesh } = buildShape({ shape: 'sphere', params: { radius: 0.25 }, vertices: 1000 });
+    const n = mesh.positions.length / 3;
+    const feed = new Float64Array(n);
+    for (let i = 0; i < n; i++) feed[i] = 0.03 + 0.02 * (mesh.positions[3 * i + 2] > 0 ? 1 : 0);
+    saveMeshFile(join(dir, 'fed.ply'), mesh, { properties: { feed } });
+    const file = scenario('fed.yaml', `
+mesh: {file: fed.ply}
+kinetics: {model: gray-scott, parameters: {F: {vertexData: feed}}}
+diffusion: {u: 0, v: 0}
+initial:
+  values: {u: 0.5, v: 0}
+  spots: {centres: [[0, 0, 0.25]], radius: 0.05, values: {v: 0.25}}
+time: {scheme: explicit, step: 1, end: 10}
+output: {every: 10}
+`);
+    expect((await run('run', file, '--out', join(dir, 'fed'), '--progress', 'none')).code).toBe(0);
+    const first = speciesFromProperties(loadMeshFile(join(dir, 'fed', 'frames', '0000.ply')).vertexData);
+    // the spot sits at the north pole: v = 0.25 within 0.05 of (0, 0, 0.25), 0 elsewhere
+    const p = mesh.positions;
+    for (let i = 0; i < n; i++) {
+      const inside = p[3 * i] ** 2 + p[3 * i + 1] ** 2 + (p[3 * i + 2] - 0.25) ** 2 <= 0.05 ** 2 + 1e-12;
+      expect(first.v[i]).toBe(inside ? 0.25 : 0);
+      expect(first.u[i]).toBe(0.5);
+    }
+    // the per-vertex feed acts: where v = 0 and nothing diffuses, u' = F(1 − u), and ten forward
+    // Euler steps of 1 give 1 − u = 0.5·(1 − F)¹⁰ with each vertex's own F
+    const after = decodeState(readFileSync(join(dir, 'fed', 'state.bin')), 'fed');
+    let checked = 0;
+    for (let i = 0; i < n; i++) {
+      if (first.v[i] !== 0) continue;
+      expect(1 - after.state[2 * i]).toBeCloseTo(0.5 * (1 - Math.fround(feed[i])) ** 10, 12); // PLY stores float32
+      checked++;
+    }
+    expect(checked).toBeGreaterThan(n / 2);
+    const record = JSON.parse(readFileSync(join(dir, 'fed', 'record.json'), 'utf8'));
+    expect(record.resolved.kinetics.parameters.F).toEqual({ vertexData: 'feed' });
+    // continue from that run's final state, adding spots at given vertices
+    const next = scenario('next.yaml', `
+mesh: {file: fed.ply}
+kinetics: {model: gray-scott, parameters: {F: {vertexData: feed}}}
+initial:
+  from: fed
+  spots: {vertices: [0, 5], radius: 0.001, values: {u: 0.5}}
+time: {scheme: explicit, end: 10}
+`);
+    expect((await run('run', next, '--out', join(dir, 'next'), '--progress', 'none')).code).toBe(0);
+    const prev = decodeState(readFileSync(join(dir, 'fed', 'state.bin')), 'fed');
+    const start = speciesFromProperties(loadMeshFile(join(dir, 'next', 'frames', '0000.ply')).vertexData);
+    for (let i = 0; i < n; i++) {
+      expect(start.v[i]).toBeCloseTo(prev.state[2 * i + 1], 6); // float32 frame of the float64 state
+      expect(start.u[i]).toBeCloseTo(i === 0 || i === 5 ? 0.5 : prev.state[2 * i], 6);
+    }
+  });
+
   it('refuses to overwrite a run directory without --force', async () => {
     const r = await run('run', join(dir, 'small.yaml'), '--out', join(dir, 'small'));
     expect(r.code).toBe(2);
