@@ -2,6 +2,12 @@ import type { Mesh } from '../mesh/Mesh.ts';
 import { meshTopology } from '../mesh/meshTopology.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
 
+/** Vertex adjacency (as `meshTopology` gives it), kept by long runs that release the rest. */
+export interface VertexNeighbours {
+  readonly vertexNeighbourOffsets: Uint32Array;
+  readonly vertexNeighbours: Uint32Array;
+}
+
 export interface PatchSummary {
   /** vertices in the patch */
   size: number;
@@ -23,13 +29,18 @@ export interface ThresholdComponents {
  * edges, of the vertices where the field exceeds `threshold`. Default threshold:
  * the mid-range (min + max)/2.
  */
-export function thresholdComponents(mesh: Mesh, field: ArrayLike<number>, threshold?: number, mass: Float64Array = lumpedMass(mesh)): ThresholdComponents {
+export function thresholdComponents(
+  mesh: Mesh,
+  field: ArrayLike<number>,
+  threshold?: number,
+  mass: Float64Array = lumpedMass(mesh),
+  neighbours: VertexNeighbours = meshTopology(mesh),
+): ThresholdComponents {
   const n = mesh.positions.length / 3;
   let lo = Infinity, hi = -Infinity;
   for (let i = 0; i < n; i++) { if (field[i] < lo) lo = field[i]; if (field[i] > hi) hi = field[i]; }
   const th = threshold ?? 0.5 * (lo + hi);
-  const topo = meshTopology(mesh);
-  const offsets = topo.vertexNeighbourOffsets, nb = topo.vertexNeighbours;
+  const offsets = neighbours.vertexNeighbourOffsets, nb = neighbours.vertexNeighbours;
   const label = new Int32Array(n).fill(-1);
   const patches: PatchSummary[] = [];
   const stack = new Int32Array(n);

@@ -13,6 +13,7 @@ import { runDemo } from './demo.ts';
 import { VERSION } from './version.ts';
 import { MODELS } from '../kinetics/models/index.ts';
 import { runScenarioFile, resumeRun, checkScenario } from './runScenario.ts';
+import { runStability } from './stability.ts';
 
 const collect = (value: string, previous: string[] = []) => previous.concat([value]);
 
@@ -175,6 +176,24 @@ export async function main(argv: string[]): Promise<number> {
         for (const [k, p] of Object.entries(m.parameters)) process.stdout.write(`    ${k.padEnd(8)} default ${String(p.default).padEnd(8)} ${p.description}\n`);
         process.stdout.write(`    source: ${m.citation}\n`);
       }
+    });
+
+  program
+    .command('stability')
+    .argument('<scenario>', 'scenario file whose kinetics, parameters, diffusion and mesh are analysed')
+    .description('linear stability: steady states, Turing conditions, unstable band, and the surface modes it predicts')
+    .option('--json', 'print the analysis as JSON')
+    .option('--paint <file>', 'write the predicted mode as a painted PLY file')
+    .option('--max-modes <n>', 'most surface eigenpairs to compute', '200')
+    .option('--state <i>', 'which homogeneous steady state to analyse (default: the scenario\'s initial.steadyState, else 0)')
+    .option('--map <name=from:to:steps>', 'a parameter axis of a stability map (give two)', collect)
+    .option('--map-out <prefix>', 'write the map as PREFIX.csv and PREFIX.svg')
+    .option('--force', 'overwrite existing output files')
+    .action((file: string, o: { json?: boolean; paint?: string; maxModes: string; state?: string; map?: string[]; mapOut?: string; force?: boolean }) => {
+      runStability(file, {
+        json: o.json, paint: o.paint, map: o.map, mapOut: o.mapOut, force: o.force,
+        maxModes: parseCount(o.maxModes, '--max-modes', 2), state: parseCount(o.state, '--state'),
+      }, (s) => process.stdout.write(s));
     });
 
   program

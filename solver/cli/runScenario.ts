@@ -7,7 +7,12 @@ import { writeFileAtomic } from '../io/meshFiles.ts';
 import { RUN_FILES, frameName, encodeFrame, stateMetrics, metricsHeader, metricsRow, encodeState, decodeState, type SavedState } from '../io/runFiles.ts';
 import { ReactionDiffusionStepper } from '../integrate/ReactionDiffusionStepper.ts';
 import { meshArea } from '../mesh/triangleAreas.ts';
-import { forgetMeshTopology } from '../mesh/meshTopology.ts';
+import { forgetMeshTopology, meshTopology } from '../mesh/meshTopology.ts';
+import { laplaceBeltramiEigenpairs, type Eigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
+import { stabilityReport } from '../analysis/stabilityReport.ts';
+import { measurePattern } from '../analysis/measurePattern.ts';
+import { patchEvents } from '../analysis/patchEvents.ts';
+import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
 import { nodeScenarioEnvironment, meshChecksum } from './scenarioEnvironment.ts';
 import { UsageError } from './UsageError.ts';
 import { VERSION } from './version.ts';
@@ -54,7 +59,24 @@ interface RunRecord {
   stop?: { reason: StopReason; time: number; step: number; message: string };
   frames: { file: string; time: number; step: number }[];
   sessions: { started: string; fromStep: number; toStep?: number; steppingSeconds?: number; outputSeconds?: number; setupSeconds: number }[];
+  analysis: RunAnalysis;
   performance?: { steps: number; steppingSeconds: number; stepsPerSecond: number; vertexStepsPerSecond: number; solverIterationsPerStep?: number; stepperBytesPerVertex: number };
+}
+
+interface RunAnalysis {
+  species: string;
+  thresholdRule: string;
+  modes: number;
+  /** largest computed eigenvalue: the spectrum (and dominantEigenvalue) sees only modes up to here */
+  modesUpTo?: number;
+  /** linear stability of the analysed steady state on this surface (when modes were computed) */
+  prediction?: { state: number; band: [number, number] | null; fastest: { k2: number; rate: number } | null; predicted: { index: number; eigenvalue: number; rate: number; multiplicity: number } | null; notes: string[] };
+  frames: { time: number; step: number; threshold: number; patches: { area: number; centroid: [number, number, number] }[]; dominantEigenvalue?: number; dominantFraction?: number }[];
+  events: { time: number; kind: string; before: number[]; after: number[] }[];
+  /** time the run reached steady state, when it stopped there */
+  timeToSteadyState?: number;
+  /** last output time at which the patch count changed */
+  lastCountChange?: number;
 }
 
 const isDirWithFiles = (dir: string) => existsSync(dir) && statSync(dir).isDirectory() && readdirSync(dir).length > 0;
@@ -113,6 +135,13 @@ export async function runScenarioFile(file: string, options: RunOptions): Promis
     status: 'running',
     frames: [],
     sessions: [],
+    analysis: {
+      species: resolved.analysis.species,
+      thresholdRule: typeof resolved.analysis.threshold === 'number' ? `fixed ${resolved.analysis.threshold}` : resolved.analysis.threshold === 'otsu' ? "Otsu's rule on the area-weighted histogram (256 bins)" : 'mid-range (min + max)/2',
+      modes: resolved.analysis.modes,
+      frames: [],
+      events: [],
+    },
   };
   return execute(out, resolved, record, undefined, [], options, t0);
 }
@@ -147,6 +176,8 @@ export async function resumeRun(dir: string, options: RunOptions): Promise<RunOu
   const metricsFile = join(out, RUN_FILES.metrics);
   const rows = existsSync(metricsFile) ? readFileSync(metricsFile, 'utf8').trim().split('\n').slice(1).filter((r) => Number(r.split(',')[1]) <= saved.step) : [];
   record.frames = record.frames.filter((f) => f.step <= saved.step);
+  record.analysis.frames = record.analysis.frames.filter((f) => f.step <= saved.step);
+  record.analysis.events = record.analysis.events.filter((e) => e.time <= saved.time);
   return execute(out, resolved, record, saved, rows, options, t0);
 }
 
@@ -158,8 +189,23 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   const every = r.output.everySteps;
   const checksum = record.mesh.checksum;
   const stepper = new ReactionDiffusionStepper(r.system, { scheme: r.scheme, dt, solver: r.solver, tolerance: r.tolerance });
-  forgetMeshTopology(r.mesh); // the stepper holds all it needs; free edges, adjacency and the CSR pattern
   const mass = stepper.mass;
+  // pattern measures: vertex adjacency, and surface eigenpairs for the spectrum and the prediction
+  const topology = meshTopology(r.mesh);
+  const neighbours = { vertexNeighbourOffsets: topology.vertexNeighbourOffsets, vertexNeighbours: topology.vertexNeighbours };
+  let eig: Eigenpairs | undefined;
+  if (r.analysis.modes > 0) {
+    eig = laplaceBeltramiEigenpairs(r.mesh, { count: r.analysis.modes, mass: 'lumped' });
+    record.analysis.modesUpTo = eig.values[eig.values.length - 1];
+    if (!saved) {
+      const rep = stabilityReport(r, { eigenpairs: eig });
+      record.analysis.prediction = { state: rep.state, band: rep.turing?.band ?? null, fastest: rep.turing?.fastest ?? null, predicted: rep.predicted, notes: rep.notes };
+    }
+  }
+  forgetMeshTopology(r.mesh); // the stepper holds all it needs; free edges and the CSR pattern
+  const measuredIndex = r.species.indexOf(r.analysis.species);
+  const measure = (state: Float64Array) => measurePattern(r.mesh, speciesField(state, nS, measuredIndex), mass, neighbours, r.analysis.threshold, eig);
+  let previousLabels: Int32Array | undefined = saved ? measure(saved.state).labels : undefined;
   stepper.setState(saved ? saved.state : r.initial);
   let step = saved?.step ?? 0;
   let nextFrame = saved?.nextFrame ?? 0;
@@ -182,7 +228,20 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   const emit = (state: Float64Array, atStep: number, frame: boolean) => {
     const tw = performance.now();
     const lastRow = metricRows[metricRows.length - 1];
-    if (lastRow === undefined || Number(lastRow.split(',')[1]) !== atStep) metricRows.push(metricsRow(atStep * dt, atStep, stateMetrics(state, nS, mass)));
+    if (lastRow === undefined || Number(lastRow.split(',')[1]) !== atStep) {
+      const pattern = measure(state);
+      const a = record.analysis;
+      const count = pattern.patches.length;
+      if (a.frames.length && a.frames[a.frames.length - 1].patches.length !== count) a.lastCountChange = atStep * dt;
+      a.frames.push({
+        time: atStep * dt, step: atStep, threshold: pattern.threshold,
+        patches: pattern.patches.map((p) => ({ area: p.area, centroid: p.centroid })),
+        dominantEigenvalue: pattern.dominant?.eigenvalue, dominantFraction: pattern.dominant?.fraction,
+      });
+      if (previousLabels) for (const e of patchEvents(previousLabels, pattern.labels)) a.events.push({ time: atStep * dt, ...e });
+      previousLabels = pattern.labels;
+      metricRows.push(metricsRow(atStep * dt, atStep, stateMetrics(state, nS, mass), [count, pattern.dominant?.eigenvalue]));
+    }
     writeFileAtomic(join(out, RUN_FILES.metrics), [metricsHeader(r.species), ...metricRows].join('\n') + '\n', true);
     if (frame && r.output.frames) {
       const name = frameName(nextFrame);
@@ -272,6 +331,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
           reference.set(stepper.state);
           referenceStep = step;
           if (change < r.steadyState) {
+            record.analysis.timeToSteadyState = step * dt;
             return finish('steady-state', step, `steady state at t=${(step * dt).toPrecision(6)}: relative change ${change.toExponential(2)} per unit time < ${r.steadyState}. Outputs in ${out}`, stepper.state);
           }
         }

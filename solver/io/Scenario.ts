@@ -15,6 +15,16 @@ export interface Scenario {
   initial?: InitialSpec;
   time: TimeSpec;
   output?: OutputSpec;
+  analysis?: AnalysisSpec;
+}
+
+export interface AnalysisSpec {
+  /** species whose pattern is measured (default: the painted one) */
+  species?: string;
+  /** how patches are cut out: Otsu's rule (default), the mid-range, or a fixed value */
+  threshold?: 'otsu' | 'mid-range' | number;
+  /** surface eigenpairs for the power spectrum and the predicted mode (default 40 up to 50k vertices, else 0 = off) */
+  modes?: number;
 }
 
 export type FieldValue = number | string | { vertexData: string };
@@ -181,6 +191,15 @@ export const SCENARIO_SCHEMA = {
         steadyState: { type: 'number', exclusiveMinimum: 0 },
         solver: { enum: ['auto', 'cg', 'cholesky'] },
         tolerance: { type: 'number', exclusiveMinimum: 0, maximum: 0.1 },
+      },
+    },
+    analysis: {
+      type: 'object',
+      additionalProperties: false,
+      properties: {
+        species: { type: 'string' },
+        threshold: { description: '"otsu", "mid-range" or a number', oneOf: [{ enum: ['otsu', 'mid-range'] }, { type: 'number' }] },
+        modes: { type: 'integer', minimum: 0, maximum: 1000 },
       },
     },
     output: {

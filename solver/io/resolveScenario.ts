@@ -31,6 +31,16 @@ export interface ScenarioEnvironment {
   loadState?(from: string): { species: string[]; values: Record<string, Float64Array> };
 }
 
+export interface AnalysisPlan {
+  species: string;
+  threshold: 'otsu' | 'mid-range' | number;
+  modes: number;
+}
+
+/** Default number of surface modes for the per-frame spectrum, on meshes up to AUTO_SPECTRUM_VERTICES. */
+export const AUTO_SPECTRUM_MODES = 40;
+export const AUTO_SPECTRUM_VERTICES = 50_000;
+
 export interface OutputPlan {
   every: number;
   everySteps: number;
@@ -65,6 +75,7 @@ export interface ResolvedScenario {
   tolerance: number;
   explicitLimit?: ExplicitStepLimit;
   output: OutputPlan;
+  analysis: AnalysisPlan;
   warnings: string[];
   /** the resolved scenario as plain data, for record.json */
   summary: Record<string, unknown>;
@@ -157,6 +168,8 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   if (!COLORMAP_NAMES.includes(colormap)) problems.add(['output', 'colormap'], `unknown colormap "${colormap}"; choose one of ${COLORMAP_NAMES.join(', ')}`);
   const range = sc.output?.range ?? 'frame';
   if (Array.isArray(range) && !(range[1] > range[0])) problems.add(['output', 'range'], `[min, max] needs max > min, got [${range.join(', ')}]`);
+  const measured = sc.analysis?.species ?? colour;
+  if (sc.analysis?.species !== undefined && species.length && !species.includes(sc.analysis.species)) problems.add(['analysis', 'species'], `"${sc.analysis.species}" is not a species (${species.join(', ')})`);
   if (sc.diffusion) {
     for (const name of Object.keys(sc.diffusion)) {
       if (species.length && !species.includes(name)) problems.add(['diffusion', name], `"${name}" is not a species (${species.join(', ')})`);
@@ -387,6 +400,11 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   const everySteps = Math.max(1, Math.round(every / step));
   if (Math.abs(everySteps * step - every) > 1e-9 * every) warnings.push(`output.every ${every} is not a whole number of steps of ${step}; frames come every ${everySteps} steps (${everySteps * step})`);
   const output: OutputPlan = { every: everySteps * step, everySteps, colour: colour!, colormap, range, frames: sc.output?.frames ?? true };
+  const analysis: AnalysisPlan = {
+    species: measured!,
+    threshold: sc.analysis?.threshold ?? 'otsu',
+    modes: Math.min(sc.analysis?.modes ?? (n <= AUTO_SPECTRUM_VERTICES ? AUTO_SPECTRUM_MODES : 0), n - 1),
+  };
 
   const summary = {
     name: sc.name ?? file.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, ''),
@@ -397,6 +415,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     initial: init,
     time: { scheme, step, end, steps, steadyState: sc.time.steadyState, solver: scheme === 'imex' ? solver : undefined, solverChoice: scheme === 'imex' ? solverReason : undefined, tolerance: scheme === 'imex' ? sc.time.tolerance ?? 1e-8 : undefined },
     output,
+    analysis,
     explicitLimit,
   };
   return {
@@ -423,6 +442,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     tolerance: sc.time.tolerance ?? 1e-8,
     explicitLimit,
     output,
+    analysis,
     warnings,
     summary,
   };

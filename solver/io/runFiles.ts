@@ -74,12 +74,16 @@ export function stateMetrics(state: Float64Array, nS: number, mass: Float64Array
   return out;
 }
 
+/** Columns after the per-species ones: the measured pattern. */
+export const PATTERN_COLUMNS = ['patches', 'dominant_eigenvalue'] as const;
+
 export function metricsHeader(species: readonly string[]): string {
-  return ['time', 'step', ...species.flatMap((s) => [`${s}_min`, `${s}_mean`, `${s}_max`, `${s}_integral`])].join(',');
+  return ['time', 'step', ...species.flatMap((s) => [`${s}_min`, `${s}_mean`, `${s}_max`, `${s}_integral`]), ...PATTERN_COLUMNS].join(',');
 }
 
-export function metricsRow(time: number, step: number, m: SpeciesMetrics[]): string {
-  return [time, step, ...m.flatMap((x) => [x.min, x.mean, x.max, x.integral])].map((v) => String(v)).join(',');
+/** One metrics row; `pattern` values may be undefined (empty cells). */
+export function metricsRow(time: number, step: number, m: SpeciesMetrics[], pattern: (number | undefined)[]): string {
+  return [time, step, ...m.flatMap((x) => [x.min, x.mean, x.max, x.integral]), ...pattern].map((v) => (v === undefined ? '' : String(v))).join(',');
 }
 
 const MAGIC = 'PLCDSTv1';

@@ -67,7 +67,7 @@ describe('placode run', () => {
     expect(record.resolved.kinetics.parameters).toEqual({ F: 0.03, k: 0.062 });
     expect(record.resolved.time).toMatchObject({ scheme: 'imex', step: 1, end: 300, solver: 'cg' }); // auto: dt·D·λmax is small, CG converges fast
     const csv = readFileSync(join(out, 'metrics.csv'), 'utf8').trim().split('\n');
-    expect(csv[0]).toBe('time,step,u_min,u_mean,u_max,u_integral,v_min,v_mean,v_max,v_integral');
+    expect(csv[0]).toBe('time,step,u_min,u_mean,u_max,u_integral,v_min,v_mean,v_max,v_integral,patches,dominant_eigenvalue');
     expect(csv.length).toBe(5);
     const frame = loadMeshFile(join(out, 'frames', '0003.ply'));
     const species = speciesFromProperties(frame.vertexData);

@@ -1,0 +1,103 @@
+import { readFileSync } from 'node:fs';
+import { parseScenario } from '../io/readScenario.ts';
+import { resolveScenario } from '../io/resolveScenario.ts';
+import { writeFileAtomic } from '../io/meshFiles.ts';
+import { stabilityReport } from '../analysis/stabilityReport.ts';
+import { parameterMap, parameterMapCsv, type MapAxis } from '../analysis/parameterMap.ts';
+import { parameterMapSvg } from '../io/parameterMapSvg.ts';
+import { saveModeFile } from './saveModeFile.ts';
+import { nodeScenarioEnvironment } from './scenarioEnvironment.ts';
+import { UsageError } from './UsageError.ts';
+
+export interface StabilityOptions {
+  json?: boolean;
+  paint?: string;
+  maxModes?: number;
+  state?: number;
+  map?: string[];
+  mapOut?: string;
+  force?: boolean;
+}
+
+/** `name=from:to:steps` → a map axis. */
+export function parseMapAxis(text: string): MapAxis {
+  const m = /^([A-Za-z][A-Za-z0-9_]*)=([^:]+):([^:]+):(\d+)$/.exec(text);
+  if (!m) throw new UsageError(`--map "${text}" should read name=from:to:steps, e.g. --map F=0.01:0.08:40`);
+  const [from, to, steps] = [Number(m[2]), Number(m[3]), Number(m[4])];
+  if (!Number.isFinite(from) || !Number.isFinite(to) || from === to) throw new UsageError(`--map ${m[1]}: from and to must be two different numbers`);
+  if (steps < 2 || steps > 400) throw new UsageError(`--map ${m[1]}: steps must be from 2 to 400`);
+  return { name: m[1], from, to, steps };
+}
+
+const fmt = (x: number) => (x === 0 ? '0' : Math.abs(x) >= 1e4 || Math.abs(x) < 1e-3 ? x.toExponential(4) : x.toPrecision(5));
+
+/** `placode stability`: the linear stability of a scenario and what it predicts on its surface. */
+export function runStability(file: string, o: StabilityOptions, out: (s: string) => void): void {
+  if (o.map && o.map.length !== 2) throw new UsageError('--map takes exactly two parameters (repeat it: --map F=…  --map k=…)');
+  if (o.map && !o.mapOut) throw new UsageError('--map needs --map-out PREFIX (writes PREFIX.csv and PREFIX.svg)');
+  let text: string;
+  try {
+    text = readFileSync(file, 'utf8');
+  } catch {
+    throw new UsageError(`${file}: no such scenario file`);
+  }
+  const r = resolveScenario(parseScenario(text, file), file, nodeScenarioEnvironment(file));
+  const report = stabilityReport(r, { maxModes: o.maxModes, stateIndex: o.state });
+  const { eigenpairs, ...data } = report;
+  if (o.paint) {
+    if (!report.predicted || !eigenpairs) throw new UsageError('--paint: no mode is predicted to grow, nothing to paint');
+    saveModeFile(o.paint, r.mesh, eigenpairs.vectors[report.predicted.index], { force: o.force, comments: [`predicted pattern: eigenvalue ${report.predicted.eigenvalue}, growth rate ${report.predicted.rate}`] });
+  }
+  let mapFiles: string[] = [];
+  if (o.map && o.mapOut) {
+    const [xAxis, yAxis] = o.map.map(parseMapAxis);
+    let cells;
+    try {
+      cells = parameterMap(r, xAxis, yAxis, report.state, eigenpairs?.values);
+    } catch (e) {
+      throw new UsageError(`--map: ${(e as Error).message}`);
+    }
+    writeFileAtomic(`${o.mapOut}.csv`, parameterMapCsv(cells, xAxis.name, yAxis.name), o.force);
+    writeFileAtomic(`${o.mapOut}.svg`, parameterMapSvg(cells, xAxis, yAxis, `${r.name}: ${r.model}, steady state ${report.state}`), o.force);
+    mapFiles = [`${o.mapOut}.csv`, `${o.mapOut}.svg`];
+  }
+  if (o.json) {
+    out(JSON.stringify({ ...data, files: [...(o.paint ? [o.paint] : []), ...mapFiles] }, null, 2) + '\n');
+    return;
+  }
+  const t = report.turing;
+  out(`${r.name}: ${r.model} with ${Object.entries(report.parameters).map(([k, v]) => `${k}=${fmt(v)}`).join(', ')}; diffusion ${Object.entries(report.diffusion).map(([k, v]) => `${k}=${fmt(v)}`).join(', ')}\n`);
+  for (const n of report.notes) out(`  note: ${n}\n`);
+  out(`homogeneous steady states:\n`);
+  report.steadyStates.forEach((s, i) => {
+    const eig = s.eigenvalues.map(([re, im]) => (im === 0 ? fmt(re) : `${fmt(re)}${im > 0 ? '+' : '−'}${fmt(Math.abs(im))}i`)).join(', ');
+    out(`  ${i === report.state ? '*' : ' '}${i}: ${Object.entries(s.values).map(([k, v]) => `${k}=${fmt(v)}`).join(', ')}  ${s.stableWithoutDiffusion ? 'stable' : 'unstable'} without diffusion (Jacobian eigenvalues ${eig}; ${s.source})\n`);
+  });
+  if (!t) return;
+  if (t.conditions) {
+    const c = t.conditions;
+    const mark = (b: boolean) => (b ? 'yes' : 'NO');
+    out(`Turing conditions for state ${report.state} (Murray, Mathematical Biology II, ch. 2):\n`);
+    out(`  (i) f_u + g_v < 0: ${mark(c.traceNegative)}   (ii) det J > 0: ${mark(c.determinantPositive)}   (iii) d·f_u + g_v > 0: ${mark(c.diffusionDriven)}   (iv) (d·f_u + g_v)² > 4d·det J: ${mark(c.discriminantPositive)}\n`);
+    if (t.criticalRatio !== undefined) out(`  critical diffusion ratio d_c = ${fmt(t.criticalRatio)} (here d = ${fmt(r.system.diffusion.length === 2 ? report.diffusion[r.species[1]] / report.diffusion[r.species[0]] : NaN)})\n`);
+  }
+  if (t.unstableWithoutDiffusion) out(`  state ${report.state} is unstable without diffusion${t.oscillatory ? ' (oscillatory: a Hopf-type instability)' : ''}: no Turing pattern selection\n`);
+  else if (!t.band) out(`  no Turing instability: every mode decays\n`);
+  else {
+    out(`  unstable band ${fmt(t.band[0])} < k² < ${fmt(t.band[1])}; fastest k² = ${fmt(t.fastest!.k2)} (wavelength ${fmt((2 * Math.PI) / Math.sqrt(t.fastest!.k2))}), growth rate ${fmt(t.fastest!.rate)}\n`);
+  }
+  if (report.surface) {
+    const s = report.surface;
+    out(`surface: ${s.vertices} vertices, area ${fmt(s.area)}; ${s.modesComputed} Laplace–Beltrami modes (lumped mass) up to λ = ${fmt(s.largestEigenvalue)}\n`);
+    if (report.modes.length) {
+      out(`  modes in the band (index, eigenvalue, growth rate):\n`);
+      for (const m of report.modes) out(`    ${String(m.index).padStart(5)}  ${fmt(m.eigenvalue).padEnd(12)} ${fmt(m.rate)}\n`);
+    } else out(`  no surface mode lies in the band${t.band ? ': the surface is too small (or too coarse) for this wavelength' : ''}\n`);
+    if (report.predicted) {
+      const p = report.predicted;
+      out(`  predicted initial pattern: mode ${p.index}${p.multiplicity > 1 ? `–${p.index + p.multiplicity - 1} (multiplicity ${p.multiplicity})` : ''}, eigenvalue ${fmt(p.eigenvalue)}, growth rate ${fmt(p.rate)}\n`);
+    }
+  }
+  if (o.paint) out(`  wrote ${o.paint}\n`);
+  for (const f of mapFiles) out(`  wrote ${f}\n`);
+}
