@@ -1,7 +1,8 @@
 import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
 import { csrAddDiagonal } from '../linalg/CsrMatrix.ts';
 import { SparseCholesky } from '../linalg/SparseCholesky.ts';
-import { ellLayout, ellPattern, ellValues, type EllLayout, type EllValues } from '../linalg/EllMatrix.ts';
+import { ellLayout, ellPattern, ellValues, type EllLayout, type EllPattern, type EllValues } from '../linalg/EllMatrix.ts';
+import { withPositions, type Mesh } from '../mesh/Mesh.ts';
 import { cotanStiffness } from '../fem/cotanStiffness.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
 import type { ReactionDiffusionSystem } from './ReactionDiffusionSystem.ts';
@@ -18,6 +19,8 @@ export interface StepperOptions {
   dt: number;
   /** implicit–explicit only: conjugate gradients (default) or sparse factorisations computed once */
   solver?: LinearSolverName;
+  /** keep what `setGeometry` needs to move the surface during the run */
+  growing?: boolean;
   /** CG relative residual tolerance (default 1e-8) */
   tolerance?: number;
   /** CG iteration cap per step (default 2000) */
@@ -48,6 +51,9 @@ export class ReactionDiffusionStepper {
   readonly diffusionKinds: readonly DiffusionKind[];
   private readonly layout: EllLayout;
   private readonly sets: EllValues[];
+  /** kept for `setGeometry` (a growing surface): the CSR operators, their ELL map, per-triangle D */
+  private readonly moving?: { pattern: EllPattern; csr: CsrMatrix[]; triangleD: (Float64Array | undefined)[]; weightSet: number[] };
+  private mesh: Mesh;
   private readonly coefficient: Float64Array;
   private readonly constants: Float64Array;
   private readonly fields: (Float64Array | undefined)[];
@@ -68,8 +74,9 @@ export class ReactionDiffusionStepper {
 
   constructor(system: ReactionDiffusionSystem, options: StepperOptions, assembled?: { stiffness: CsrMatrix; mass: Float64Array }) {
     this.system = system;
-    this.options = { solver: 'cg', tolerance: 1e-8, maxIterations: 2000, ...options };
+    this.options = { solver: 'cg', tolerance: 1e-8, maxIterations: 2000, growing: false, ...options };
     const { mesh, kinetics } = system;
+    this.mesh = mesh;
     const n = mesh.positions.length / 3;
     const nS = kinetics.species.length;
     this.vertexCount = n;
@@ -86,6 +93,7 @@ export class ReactionDiffusionStepper {
     const kinds: DiffusionKind[] = [];
     const weightSet: number[] = [];
     const csrOf: CsrMatrix[] = [stiffness];
+    const triangleD: (Float64Array | undefined)[] = [];
     this.sets = [ellValues(pattern, stiffness, rowScale)];
     this.coefficient = new Float64Array(nS);
     system.diffusion.forEach((d, s) => {
@@ -95,7 +103,9 @@ export class ReactionDiffusionStepper {
         this.coefficient[s] = dt * d;
       } else {
         kinds.push('field');
-        const k = cotanStiffness(mesh, { ...stiffness, values: new Float64Array(stiffness.values.length) }, triangleMeans(mesh.triangles, d));
+        const coefficient = triangleMeans(mesh.triangles, d);
+        triangleD.push(coefficient);
+        const k = cotanStiffness(mesh, { ...stiffness, values: new Float64Array(stiffness.values.length) }, coefficient);
         weightSet.push(this.sets.length);
         csrOf.push(k);
         this.sets.push(ellValues(pattern, k, rowScale));
@@ -104,6 +114,7 @@ export class ReactionDiffusionStepper {
     });
     this.diffusionKinds = kinds;
     this.layout = ellLayout(pattern);
+    if (this.options.growing) this.moving = { pattern, csr: csrOf, triangleD: [undefined, ...triangleD], weightSet };
     const rows: RowProductPlan = { speciesCount: nS, width: pattern.width, hasOverflow: pattern.overflowColumns.length > 0, weightSet };
     this.constants = new Float64Array(system.parameters.map((p) => (typeof p === 'number' ? p : 0)));
     this.fields = system.parameters.map((p) => (typeof p === 'number' ? undefined : p));
@@ -121,16 +132,62 @@ export class ReactionDiffusionStepper {
         this.solution = new Float64Array(n);
       } else {
         this.cg = compileFusedCg(rows);
-        const inverseDiagonal = new Float64Array(n * nS);
-        for (let i = 0; i < n; i++) {
-          for (let s = 0; s < nS; s++) {
-            const kii = weightSet[s] < 0 ? 0 : this.sets[weightSet[s]].diagonal[i];
-            inverseDiagonal[i * nS + s] = 1 / (mass[i] + this.coefficient[s] * kii);
-          }
-        }
-        this.work = { r: new Float64Array(n * nS), p: new Float64Array(n * nS), q: new Float64Array(n * nS), inverseDiagonal };
+        this.work = { r: new Float64Array(n * nS), p: new Float64Array(n * nS), q: new Float64Array(n * nS), inverseDiagonal: new Float64Array(n * nS) };
+        this.fillInverseDiagonal(weightSet);
       }
     }
+  }
+
+  /** Jacobi preconditioner of the CG solve: 1/(m_i + c_s K_s,ii). */
+  private fillInverseDiagonal(weightSet: readonly number[]): void {
+    const n = this.vertexCount, nS = this.speciesCount, inv = this.work!.inverseDiagonal;
+    for (let i = 0; i < n; i++) {
+      for (let s = 0; s < nS; s++) {
+        const kii = weightSet[s] < 0 ? 0 : this.sets[weightSet[s]].diagonal[i];
+        inv[i * nS + s] = 1 / (this.mass[i] + this.coefficient[s] * kii);
+      }
+    }
+  }
+
+  /**
+   * Move the surface (evolving-surface finite elements, Dziuk & Elliott, IMA J.
+   * Numer. Anal. 27 (2007)): nodes move with the material velocity and the
+   * basis functions with them, so Σ M U is carried unchanged by the motion:
+   * U_i ← U_i·m_i(old)/m_i(new), then K and M are reassembled on the new
+   * geometry. Dilution by growth is this transfer; nothing else is added.
+   * Needs `growing: true`.
+   */
+  setGeometry(positions: Float64Array): void {
+    const mv = this.moving;
+    if (!mv) throw new Error('setGeometry: create the stepper with growing: true');
+    this.mesh = withPositions(this.mesh, positions);
+    const n = this.vertexCount, nS = this.speciesCount;
+    const old = this.mass.slice();
+    lumpedMass(this.mesh, this.mass);
+    const u = this.current;
+    for (let i = 0; i < n; i++) {
+      const f = old[i] / this.mass[i];
+      for (let s = 0; s < nS; s++) u[i * nS + s] *= f;
+    }
+    const rowScale = this.explicitKernel ? this.mass.map((m) => 1 / m) : undefined;
+    mv.csr.forEach((k, g) => {
+      cotanStiffness(this.mesh, k, mv.triangleD[g]);
+      ellValues(mv.pattern, k, rowScale, this.sets[g]);
+    });
+    if (this.work) this.fillInverseDiagonal(mv.weightSet);
+    if (this.factors) {
+      for (const { factor, species } of this.factors) {
+        const s = species[0], g = mv.weightSet[s];
+        const scale = g < 0 ? 0 : this.coefficient[s];
+        const k = mv.csr[Math.max(0, g)];
+        factor.refactor(csrAddDiagonal({ ...k, values: k.values.map((v) => scale * v) }, this.mass));
+      }
+    }
+  }
+
+  /** The surface as it is now (moved by `setGeometry`). */
+  get surface(): Mesh {
+    return this.mesh;
   }
 
   /** One factorisation per distinct matrix M + c_s K_s (species with equal D share it). */
@@ -174,7 +231,7 @@ export class ReactionDiffusionStepper {
   step(t: number): boolean {
     const n = this.vertexCount;
     const dt = this.options.dt;
-    const positions = this.system.mesh.positions;
+    const positions = this.mesh.positions;
     let check: number;
     if (this.explicitKernel) {
       check = this.explicitKernel(n, this.layout, this.sets, this.current, this.other, dt, t, this.coefficient, this.constants, this.fields, positions);

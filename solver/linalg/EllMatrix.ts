@@ -79,12 +79,15 @@ export function ellPattern(a: CsrMatrix, stride: number, width = chooseWidth(a))
   return { rows: n, width, stride, columns, overflowOffsets, overflowColumns, slotMap };
 }
 
-/** Values of `a` (same pattern as the matrix `m` was built from), each row times rowScale[i]. */
-export function ellValues(m: EllPattern, a: CsrMatrix, rowScale?: Float64Array): EllValues {
+/**
+ * Values of `a` (same pattern as the matrix `m` was built from), each row times
+ * rowScale[i]; into `out` when given (a moving surface refills in place).
+ */
+export function ellValues(m: EllPattern, a: CsrMatrix, rowScale?: Float64Array, out?: EllValues): EllValues {
   const n = m.rows;
-  const diagonal = new Float64Array(n);
-  const weights = new Float64Array(n * m.width);
-  const overflow = new Float64Array(m.overflowColumns.length);
+  const diagonal = out?.diagonal ?? new Float64Array(n);
+  const weights = out?.weights ?? new Float64Array(n * m.width);
+  const overflow = out?.overflow ?? new Float64Array(m.overflowColumns.length);
   const { rowOffsets: ro, values: av } = a;
   if (a.columns.length !== m.slotMap.length) throw new Error('ellValues: the matrix does not have the pattern the layout was built from');
   for (let i = 0; i < n; i++) {

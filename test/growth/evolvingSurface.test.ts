@@ -1,0 +1,101 @@
+import { describe, expect, it } from 'vitest';
+import { icosphere } from '../../meshes/shapes/icosphere.ts';
+import { buildShape } from '../../meshes/shapes/index.ts';
+import type { Mesh } from '../../solver/mesh/Mesh.ts';
+import { compileKinetics } from '../../solver/kinetics/compileKinetics.ts';
+import { ReactionDiffusionStepper, type StepperOptions } from '../../solver/integrate/ReactionDiffusionStepper.ts';
+import { affineGrowth } from '../../solver/growth/affineGrowth.ts';
+import { normalGrowth } from '../../solver/growth/normalGrowth.ts';
+import type { GrowthLaw } from '../../solver/growth/GrowthLaw.ts';
+
+function total(st: ReactionDiffusionStepper): number {
+  let s = 0;
+  for (let i = 0; i < st.mass.length; i++) s += st.mass[i] * st.state[i];
+  return s;
+}
+
+/** Pure diffusion of one species while the surface moves by `law`, geometry updated every step. */
+function diffuseWhileGrowing(mesh: Mesh, law: GrowthLaw, options: StepperOptions, steps: number, init: (x: number, y: number, z: number) => number) {
+  const kinetics = compileKinetics(['u'], { u: '0' }, []);
+  const st = new ReactionDiffusionStepper({ mesh, kinetics, parameters: [], diffusion: [0.05] }, { ...options, growing: true });
+  const p = mesh.positions;
+  for (let i = 0; i < p.length / 3; i++) st.state[i] = init(p[3 * i], p[3 * i + 1], p[3 * i + 2]);
+  const next = new Float64Array(p.length);
+  const before = total(st);
+  for (let k = 0; k < steps; k++) {
+    const t0 = k * options.dt, t1 = (k + 1) * options.dt;
+    law.advance(st.surface, t0, t1, next);
+    st.setGeometry(next.slice());
+    st.step(t0);
+  }
+  return { st, before, after: total(st) };
+}
+
+describe('evolving-surface finite elements (Dziuk & Elliott, IMA J. Numer. Anal. 2007)', () => {
+  const sphere = icosphere(10, 1);
+  const paddle = buildShape({ shape: 'limb-bud', vertices: 2000 }).mesh;
+  const laws: [string, Mesh, GrowthLaw][] = [
+    ['uniform exponential growth of a sphere', sphere, affineGrowth(sphere.positions.slice(), [0.5, 0.5, 0.5], 'exponential', [0, 0, 0])],
+    ['anisotropic growth of the paddle', paddle, affineGrowth(paddle.positions.slice(), [0.6, 0.1, 0], 'linear', [0, 0, 0])],
+    ['normal growth fastest at the distal tip', paddle, normalGrowth((x) => 0.3 * Math.max(0, x - 1.5), '0.3·max(0, x − 1.5)')],
+  ];
+  for (const [name, mesh, law] of laws) {
+    for (const options of [{ scheme: 'explicit', dt: 1e-4 }, { scheme: 'imex', dt: 0.01 }, { scheme: 'imex', dt: 0.01, solver: 'cholesky' }] as StepperOptions[]) {
+      it(`pure diffusion conserves Σ M(t)U(t) to round-off: ${name}, ${options.scheme}${options.solver ? ' + ' + options.solver : ''}`, () => {
+        const steps = options.scheme === 'explicit' ? 300 : 60;
+        const { before, after, st } = diffuseWhileGrowing(mesh, law, options, steps, (x, y, z) => 1 + 0.5 * Math.sin(3 * x) * Math.cos(2 * y + z));
+        expect(Math.abs(after - before)).toBeLessThan(1e-12 * Math.abs(before) * Math.sqrt(st.vertexCount));
+        // the surface did move
+        let moved = 0;
+        for (let i = 0; i < mesh.positions.length; i++) moved = Math.max(moved, Math.abs(st.surface.positions[i] - mesh.positions[i]));
+        expect(moved).toBeGreaterThan(1e-3);
+      });
+    }
+  }
+
+  it('uniform growth dilutes a homogeneous concentration as u₀/ρ(t)² (analytic)', () => {
+    const rate = 0.3;
+    const law = affineGrowth(sphere.positions.slice(), [rate, rate, rate], 'logistic', [0, 0, 0], 3);
+    const { st } = diffuseWhileGrowing(sphere, law, { scheme: 'imex', dt: 0.05 }, 40, () => 2);
+    const rho = law.scaleAt!(40 * 0.05);
+    for (let i = 0; i < st.vertexCount; i++) expect(st.state[i]).toBeCloseTo(2 / (rho * rho), 12);
+    expect(rho).toBeGreaterThan(1.5);
+  });
+});
+
+describe('exact solution on an exponentially expanding sphere', () => {
+  it('converges at second order in space (solution derived below)', async () => {
+    // R(t) = e^{rt}, material velocity v = r·x, ∇_Γ·v = 2r. The conservation law
+    // ∂•u + u∇_Γ·v = DΔ_Γu has the solution u = A(t)·Y(x/R) for a degree-l harmonic Y
+    // (material points keep x/R), with A′ = −(2r + D·l(l+1)/R²)A, so
+    // A(t) = A₀·exp(−2rt − D·l(l+1)(1 − e^{−2rt})/(2r)). Here Y = 3ẑ² − 1, l = 2.
+    const { observedOrder } = await import('../fixtures/meshes.ts');
+    const r = 2, D = 1, T = 0.02, dt = 2e-5;
+    const exact = Math.exp(-2 * r * T - (D * 6 * (1 - Math.exp(-2 * r * T))) / (2 * r));
+    const errors: number[] = [], hs: number[] = [];
+    for (const nu of [6, 12, 24]) {
+      const mesh = icosphere(nu, 1);
+      const n = mesh.positions.length / 3;
+      const law = affineGrowth(mesh.positions.slice(), [r, r, r], 'exponential', [0, 0, 0]);
+      const kinetics = compileKinetics(['u'], { u: '0' }, []);
+      const st = new ReactionDiffusionStepper({ mesh, kinetics, parameters: [], diffusion: [D] }, { scheme: 'imex', dt, tolerance: 1e-12, growing: true });
+      const Y = new Float64Array(n);
+      for (let i = 0; i < n; i++) Y[i] = 3 * mesh.positions[3 * i + 2] ** 2 - 1; // unit sphere: ẑ = z
+      st.state.set(Y);
+      const next = new Float64Array(3 * n);
+      const steps = Math.round(T / dt);
+      for (let k = 0; k < steps; k++) {
+        law.advance(st.surface, k * dt, (k + 1) * dt, next);
+        st.setGeometry(next.slice());
+        st.step(k * dt);
+      }
+      let uy = 0, yy = 0;
+      for (let i = 0; i < n; i++) { uy += st.mass[i] * st.state[i] * Y[i]; yy += st.mass[i] * Y[i] * Y[i]; }
+      errors.push(Math.abs(uy / yy - exact) / exact);
+      hs.push(1 / nu);
+    }
+    expect(observedOrder(errors[0], errors[1], hs[0], hs[1])).toBeGreaterThan(1.7);
+    expect(observedOrder(errors[1], errors[2], hs[1], hs[2])).toBeGreaterThan(1.7);
+    expect(errors[2]).toBeLessThan(2e-4);
+  });
+});
