@@ -219,7 +219,7 @@ export async function main(argv: string[]): Promise<number> {
         }
         outcome = await runScenarioFile(file, { out: o.out, force: o.force, progress: o.progress, command: argv });
       }
-      exitCode = outcome.reason === 'blow-up' ? 3 : outcome.reason === 'interrupted' ? 130 : 0;
+      exitCode = outcome.reason === 'blow-up' || outcome.reason === 'degenerate' ? 3 : outcome.reason === 'interrupted' ? 130 : 0;
     });
 
   try {

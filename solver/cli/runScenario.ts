@@ -9,15 +9,22 @@ import { ReactionDiffusionStepper } from '../integrate/ReactionDiffusionStepper.
 import { meshArea } from '../mesh/triangleAreas.ts';
 import { forgetMeshTopology, meshTopology } from '../mesh/meshTopology.ts';
 import { laplaceBeltramiEigenpairs, type Eigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
-import { stabilityReport } from '../analysis/stabilityReport.ts';
+import { stabilityReport, constantValues, steadyStatesOf } from '../analysis/stabilityReport.ts';
+import { turingAnalysis } from '../analysis/dispersion.ts';
 import { measurePattern } from '../analysis/measurePattern.ts';
 import { patchEvents } from '../analysis/patchEvents.ts';
 import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
+import { GrowthDriver, GrowthDegenerationError } from '../growth/GrowthDriver.ts';
+import { transferToRefinement } from '../growth/transferToRefinement.ts';
+import { refineMidpoint } from '../mesh/refineMidpoint.ts';
+import { prolongField } from '../mesh/Refinement.ts';
+import { withPositions, type Mesh } from '../mesh/Mesh.ts';
+import { edgeLengthStats } from '../mesh/edgeLengthStats.ts';
 import { nodeScenarioEnvironment, meshChecksum } from './scenarioEnvironment.ts';
 import { UsageError } from './UsageError.ts';
 import { VERSION } from './version.ts';
 
-export type StopReason = 'end' | 'steady-state' | 'blow-up' | 'interrupted';
+export type StopReason = 'end' | 'steady-state' | 'blow-up' | 'interrupted' | 'degenerate';
 
 export interface RunOptions {
   /** run directory to write (new run) */
@@ -60,6 +67,7 @@ interface RunRecord {
   frames: { file: string; time: number; step: number }[];
   sessions: { started: string; fromStep: number; toStep?: number; steppingSeconds?: number; outputSeconds?: number; setupSeconds: number }[];
   analysis: RunAnalysis;
+  growth?: { description: string; tolerance: number; updates: number; refinements: { time: number; step: number; from: number; to: number }[] };
   performance?: { steps: number; steppingSeconds: number; stepsPerSecond: number; vertexStepsPerSecond: number; solverIterationsPerStep?: number; stepperBytesPerVertex: number };
 }
 
@@ -73,6 +81,8 @@ interface RunAnalysis {
   prediction?: { state: number; band: [number, number] | null; fastest: { k2: number; rate: number } | null; predicted: { index: number; eigenvalue: number; rate: number; multiplicity: number } | null; notes: string[] };
   frames: { time: number; step: number; threshold: number; patches: { area: number; centroid: [number, number, number] }[]; dominantEigenvalue?: number; dominantFraction?: number }[];
   events: { time: number; kind: string; before: number[]; after: number[] }[];
+  /** growing runs: the predicted mode as the surface grows (eigenpairs recomputed when the area has changed by 5 %) */
+  predictions?: { time: number; area: number; vertices: number; predicted: { index: number; eigenvalue: number; rate: number; multiplicity: number } | null }[];
   /** time the run reached steady state, when it stopped there */
   timeToSteadyState?: number;
   /** last output time at which the patch count changed */
@@ -183,31 +193,71 @@ export async function resumeRun(dir: string, options: RunOptions): Promise<RunOu
 
 async function execute(out: string, r: ResolvedScenario, record: RunRecord, saved: SavedState | undefined, metricRows: string[], options: RunOptions, t0: number): Promise<RunOutcome> {
   const log = options.log ?? ((line: string) => process.stderr.write(line + '\n'));
-  const n = r.mesh.positions.length / 3;
   const nS = r.species.length;
   const { dt, steps: lastStep } = r;
   const every = r.output.everySteps;
   const checksum = record.mesh.checksum;
-  const stepper = new ReactionDiffusionStepper(r.system, { scheme: r.scheme, dt, solver: r.solver, tolerance: r.tolerance });
-  const mass = stepper.mass;
-  // pattern measures: vertex adjacency, and surface eigenpairs for the spectrum and the prediction
-  const topology = meshTopology(r.mesh);
-  const neighbours = { vertexNeighbourOffsets: topology.vertexNeighbourOffsets, vertexNeighbours: topology.vertexNeighbours };
-  let eig: Eigenpairs | undefined;
-  if (r.analysis.modes > 0) {
-    eig = laplaceBeltramiEigenpairs(r.mesh, { count: r.analysis.modes, mass: 'lumped' });
-    record.analysis.modesUpTo = eig.values[eig.values.length - 1];
-    if (!saved) {
-      const rep = stabilityReport(r, { eigenpairs: eig });
-      record.analysis.prediction = { state: rep.state, band: rep.turing?.band ?? null, fastest: rep.turing?.fastest ?? null, predicted: rep.predicted, notes: rep.notes };
-    }
+  const growing = r.growth !== undefined;
+  // the surface: the start mesh, or (resuming a growing run) its refinements moved to the saved positions
+  let system = r.system;
+  let growthReference = r.mesh.positions;
+  let refinements = 0;
+  const refineSystem = () => {
+    const rf = refineMidpoint(system.mesh);
+    const prolong = (v: number | Float64Array) => (typeof v === 'number' ? v : prolongField(v, rf));
+    growthReference = prolongField(growthReference, rf, 3);
+    system = { mesh: rf.mesh, kinetics: system.kinetics, parameters: system.parameters.map(prolong), diffusion: system.diffusion.map(prolong) };
+    refinements++;
+    return rf;
+  };
+  if (saved?.growth) {
+    for (let k = 0; k < saved.growth.refinements; k++) refineSystem();
+    system = { ...system, mesh: withPositions(system.mesh, saved.growth.positions.slice()) };
   }
-  forgetMeshTopology(r.mesh); // the stepper holds all it needs; free edges and the CSR pattern
+  const stepperOptions = { scheme: r.scheme, dt, solver: r.solver, tolerance: r.tolerance, growing };
+  let stepper = new ReactionDiffusionStepper(system, stepperOptions);
+  let n = system.mesh.positions.length / 3;
+  let driver: GrowthDriver | undefined;
+  if (r.growth) {
+    driver = new GrowthDriver(r.growth.makeLaw(growthReference), n, r.growth.tolerance, saved?.step ?? 0);
+    record.growth ??= { description: r.growth.description, tolerance: r.growth.tolerance, updates: 0, refinements: [] };
+  }
+  const area0 = meshArea(r.mesh);
+  let edgeAtRefinement = saved?.growth?.edgeAtRefinement ?? meanEdge(system.mesh);
+  // pattern measures: vertex adjacency, and surface eigenpairs for the spectrum and the prediction
+  let eig: Eigenpairs | undefined;
+  let eigArea = 0;
+  const linearBand = growing && r.analysis.modes > 0 ? predictedBand(r) : null;
+  const updateEigenpairs = (atStep: number) => {
+    const surface = stepper.surface;
+    eigArea = meshArea(surface);
+    // enough modes to reach the unstable band on the grown surface (Weyl: about area·k²/(4π) below k²)
+    const band = linearBand;
+    const weyl = band && Number.isFinite(band[1]) ? Math.ceil((1.25 * eigArea * band[1]) / (4 * Math.PI)) + 12 : 0;
+    eig = laplaceBeltramiEigenpairs(surface, { count: Math.min(Math.max(r.analysis.modes, weyl), MAX_TRACKED_MODES, n - 1), mass: 'lumped' });
+    record.analysis.modesUpTo = eig.values[eig.values.length - 1];
+    const rep = stabilityReport({ ...r, mesh: surface, system }, { eigenpairs: eig });
+    const prediction = { state: rep.state, band: rep.turing?.band ?? null, fastest: rep.turing?.fastest ?? null, predicted: rep.predicted, notes: rep.notes };
+    if (atStep === 0) record.analysis.prediction = prediction;
+    if (growing) (record.analysis.predictions ??= []).push({ time: atStep * dt, area: eigArea, vertices: n, predicted: rep.predicted });
+  };
+  if (r.analysis.modes > 0 && (!saved || growing)) updateEigenpairs(saved?.step ?? 0);
+  if (!growing) forgetMeshTopology(r.mesh); // the stepper holds all it needs; free edges and the CSR pattern
   const measuredIndex = r.species.indexOf(r.analysis.species);
-  const measure = (state: Float64Array) => measurePattern(r.mesh, speciesField(state, nS, measuredIndex), mass, neighbours, r.analysis.threshold, eig);
+  const measure = (state: Float64Array) => {
+    const surface = stepper.surface;
+    const topo = meshTopology(surface);
+    return measurePattern(surface, speciesField(state, nS, measuredIndex), stepper.mass, topo, r.analysis.threshold, eig);
+  };
   let previousLabels: Int32Array | undefined = saved ? measure(saved.state).labels : undefined;
   stepper.setState(saved ? saved.state : r.initial);
   let step = saved?.step ?? 0;
+  if (driver) {
+    if (saved?.growth) {
+      driver.lastUpdate = saved.growth.lastUpdate;
+      driver.nextUpdate = saved.growth.nextUpdate;
+    } else driver.start(stepper, step, dt);
+  }
   let nextFrame = saved?.nextFrame ?? 0;
   let reference: Float64Array | undefined = r.steadyState !== undefined ? new Float64Array(saved?.reference ?? r.initial) : undefined;
   let referenceStep = saved ? Math.floor(saved.step / every) * every : 0;
@@ -220,7 +270,8 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     writeFileAtomic(join(out, RUN_FILES.record), JSON.stringify(record, null, 2) + '\n', true);
   };
   const saveState = (state: Float64Array, atStep: number) => {
-    writeFileAtomic(join(out, RUN_FILES.state), encodeState({ step: atStep, time: atStep * dt, nextFrame, species: [...r.species], vertexCount: n, meshChecksum: checksum, dt, state, reference }), true);
+    const growth = driver ? { refinements, lastUpdate: driver.lastUpdate, nextUpdate: driver.nextUpdate, edgeAtRefinement, positions: stepper.surface.positions } : undefined;
+    writeFileAtomic(join(out, RUN_FILES.state), encodeState({ step: atStep, time: atStep * dt, nextFrame, species: [...r.species], vertexCount: n, meshChecksum: checksum, dt, state, reference, growth }), true);
   };
   const comments = (atStep: number) => [`placode ${VERSION} run ${r.name}`, `time ${atStep * dt} step ${atStep}`];
   const style = { colour: r.output.colour, colormap: r.output.colormap, range: r.output.range };
@@ -229,6 +280,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     const tw = performance.now();
     const lastRow = metricRows[metricRows.length - 1];
     if (lastRow === undefined || Number(lastRow.split(',')[1]) !== atStep) {
+      if (growing && r.analysis.modes > 0 && Math.abs(meshArea(stepper.surface) / eigArea - 1) > EIGEN_REFRESH) updateEigenpairs(atStep);
       const pattern = measure(state);
       const a = record.analysis;
       const count = pattern.patches.length;
@@ -240,12 +292,13 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
       });
       if (previousLabels) for (const e of patchEvents(previousLabels, pattern.labels)) a.events.push({ time: atStep * dt, ...e });
       previousLabels = pattern.labels;
-      metricRows.push(metricsRow(atStep * dt, atStep, stateMetrics(state, nS, mass), [count, pattern.dominant?.eigenvalue]));
+      const area = meshArea(stepper.surface);
+      metricRows.push(metricsRow(atStep * dt, atStep, stateMetrics(state, nS, stepper.mass), [count, pattern.dominant?.eigenvalue, ...(growing ? [area, Math.sqrt(area / area0), n] : [])]));
     }
-    writeFileAtomic(join(out, RUN_FILES.metrics), [metricsHeader(r.species), ...metricRows].join('\n') + '\n', true);
+    writeFileAtomic(join(out, RUN_FILES.metrics), [metricsHeader(r.species, growing), ...metricRows].join('\n') + '\n', true);
     if (frame && r.output.frames) {
       const name = frameName(nextFrame);
-      writeFileAtomic(join(out, RUN_FILES.frames, name), encodeFrame(r.mesh, r.species, state, style, comments(atStep)), true);
+      writeFileAtomic(join(out, RUN_FILES.frames, name), encodeFrame(stepper.surface, r.species, state, style, comments(atStep)), true);
       record.frames.push({ file: `${RUN_FILES.frames}/${name}`, time: atStep * dt, step: atStep });
     }
     if (frame) nextFrame++;
@@ -254,7 +307,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   };
   const finish = (reason: StopReason, atStep: number, message: string, state: Float64Array): RunOutcome => {
     const tw = performance.now();
-    if (reason !== 'interrupted') writeFileAtomic(join(out, RUN_FILES.final), encodeFrame(r.mesh, r.species, state, style, comments(atStep)), true);
+    if (reason !== 'interrupted') writeFileAtomic(join(out, RUN_FILES.final), encodeFrame(stepper.surface, r.species, state, style, comments(atStep)), true);
     outputSeconds += (performance.now() - tw) / 1000;
     record.status = reason;
     record.stop = { reason, time: atStep * dt, step: atStep, message };
@@ -287,6 +340,40 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   for (const w of r.warnings) log(`warning: ${w}`);
   for (const note of r.meshNotes) log(`mesh: ${note}`);
   log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${n} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''} → ${out}`);
+  /** Move the surface to `step` if due (or forced), refining when its elements have grown; an outcome if it folded. */
+  const growTo = (step: number, force: boolean, chunkStart: number): RunOutcome | undefined => {
+    try {
+      if (driver!.maybeUpdate(stepper, step, dt, force)) {
+        record.growth!.updates++;
+        if (r.growth!.refine && meanEdge(stepper.surface) >= r.growth!.refine.edgeGrowth * edgeAtRefinement && 4 * n <= r.growth!.refine.maxVertices) {
+          const before = n;
+          const state = stepper.state;
+          const oldMass = stepper.mass;
+          system = { ...system, mesh: stepper.surface };
+          const rf = refineSystem();
+          const next = new ReactionDiffusionStepper(system, stepperOptions);
+          next.setState(transferToRefinement(state, oldMass, rf, next.mass, nS));
+          stepper = next;
+          n = system.mesh.positions.length / 3;
+          driver = new GrowthDriver(r.growth!.makeLaw(growthReference), n, r.growth!.tolerance, step);
+          driver.start(stepper, step, dt);
+          edgeAtRefinement = meanEdge(stepper.surface);
+          previousLabels = undefined;
+          if (reference) reference = prolongField(reference, rf, nS);
+          record.growth!.refinements.push({ time: step * dt, step, from: before, to: n });
+          log(`  refined at t=${(step * dt).toPrecision(6)}: ${before} → ${n} vertices`);
+          if (r.analysis.modes > 0) updateEigenpairs(step);
+        }
+      }
+    } catch (e) {
+      if (!(e instanceof GrowthDegenerationError)) throw e;
+      steppingSeconds += (performance.now() - chunkStart) / 1000;
+      emit(stepper.state, step, false);
+      return finish('degenerate', step, `${e.message}. The last state before it is in ${RUN_FILES.final} and ${RUN_FILES.state}.`, stepper.state);
+    }
+    return undefined;
+  };
+
   const progress = makeProgress(options, log, step * dt, lastStep * dt);
   let steppingSeconds = 0;
   try {
@@ -298,6 +385,10 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
       const target = Math.min(lastStep, (Math.floor(step / every) + 1) * every);
       const chunkStart = performance.now();
       while (step < target) {
+        if (driver) {
+          const stopped = growTo(step, false, chunkStart);
+          if (stopped) return stopped;
+        }
         const ok = stepper.step(step * dt);
         step++;
         if (!ok) {
@@ -325,6 +416,10 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
       await new Promise((res) => setImmediate(res));
       const atOutput = step % every === 0 || step === lastStep;
       if (atOutput) {
+        if (driver) {
+          const stopped = growTo(step, true, performance.now());
+          if (stopped) return stopped;
+        }
         emit(stepper.state, step, true);
         if (reference && r.steadyState !== undefined) {
           const change = relativeChange(stepper.state, reference, (step - referenceStep) * dt);
@@ -347,6 +442,22 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     process.off('SIGTERM', onSignal);
     progress.stop();
   }
+}
+
+/** The unstable band of the run's steady state (no surface needed), or null. */
+function predictedBand(r: ResolvedScenario): [number, number] | null {
+  const values = constantValues(r);
+  const state = steadyStatesOf(r, values.parameters, r.seed)[(r.summary.initial as { steadyState?: number } | undefined)?.steadyState ?? 0];
+  return state ? turingAnalysis(state.jacobian, values.diffusion).band : null;
+}
+
+/** Relative change of the surface area after which a growing run recomputes its eigenpairs. */
+const EIGEN_REFRESH = 0.05;
+/** The most eigenpairs a growing run computes to follow its predicted mode. */
+const MAX_TRACKED_MODES = 300;
+
+function meanEdge(mesh: Mesh): number {
+  return edgeLengthStats(mesh).mean;
 }
 
 /** max_i |U − U_ref| / (Δt · max(max_i |U|, 1e-30)). */

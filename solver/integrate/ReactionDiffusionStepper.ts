@@ -155,6 +155,8 @@ export class ReactionDiffusionStepper {
    * basis functions with them, so Σ M U is carried unchanged by the motion:
    * U_i ← U_i·m_i(old)/m_i(new), then K and M are reassembled on the new
    * geometry. Dilution by growth is this transfer; nothing else is added.
+   * Everything is recomputed from the positions alone, so a run resumed from
+   * saved positions continues bit for bit.
    * Needs `growing: true`.
    */
   setGeometry(positions: Float64Array): void {
@@ -162,12 +164,16 @@ export class ReactionDiffusionStepper {
     if (!mv) throw new Error('setGeometry: create the stepper with growing: true');
     this.mesh = withPositions(this.mesh, positions);
     const n = this.vertexCount, nS = this.speciesCount;
+    const u = this.current;
     const old = this.mass.slice();
     lumpedMass(this.mesh, this.mass);
-    const u = this.current;
     for (let i = 0; i < n; i++) {
       const f = old[i] / this.mass[i];
       for (let s = 0; s < nS; s++) u[i * nS + s] *= f;
+    }
+    if (this.explicitKernel) {
+      // back to the unscaled coefficients: the new weights hold K/m of the new surface
+      this.system.diffusion.forEach((d, s) => (this.coefficient[s] = typeof d === 'number' ? this.options.dt * d : this.options.dt));
     }
     const rowScale = this.explicitKernel ? this.mass.map((m) => 1 / m) : undefined;
     mv.csr.forEach((k, g) => {
@@ -175,13 +181,15 @@ export class ReactionDiffusionStepper {
       ellValues(mv.pattern, k, rowScale, this.sets[g]);
     });
     if (this.work) this.fillInverseDiagonal(mv.weightSet);
-    if (this.factors) {
-      for (const { factor, species } of this.factors) {
-        const s = species[0], g = mv.weightSet[s];
-        const scale = g < 0 ? 0 : this.coefficient[s];
-        const k = mv.csr[Math.max(0, g)];
-        factor.refactor(csrAddDiagonal({ ...k, values: k.values.map((v) => scale * v) }, this.mass));
-      }
+    if (this.factors) this.refactorAll(mv);
+  }
+
+  private refactorAll(mv: NonNullable<ReactionDiffusionStepper['moving']>): void {
+    for (const { factor, species } of this.factors!) {
+      const s = species[0], g = mv.weightSet[s];
+      const scale = g < 0 ? 0 : this.coefficient[s];
+      const k = mv.csr[Math.max(0, g)];
+      factor.refactor(csrAddDiagonal({ ...k, values: k.values.map((v) => scale * v) }, this.mass));
     }
   }
 

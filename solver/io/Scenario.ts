@@ -16,12 +16,34 @@ export interface Scenario {
   time: TimeSpec;
   output?: OutputSpec;
   analysis?: AnalysisSpec;
+  growth?: GrowthSpec;
+}
+
+export interface GrowthSpec {
+  /** uniform or anisotropic scaling about a centre, or growth along the surface normal */
+  law: 'uniform' | 'anisotropic' | 'normal';
+  /** time course of the scale factors (exponential by default) */
+  course?: 'exponential' | 'linear' | 'logistic';
+  /** uniform: relative growth rate of lengths per unit time */
+  rate?: number;
+  /** anisotropic: rates along x, y, z */
+  rates?: [number, number, number];
+  /** logistic: the final scale factor (default 2) */
+  capacity?: number;
+  /** centre of scaling (default: the surface's area centroid) */
+  centre?: [number, number, number];
+  /** normal: speed along the normal, a formula in x, y, z, t and the kinetics parameters */
+  speed?: string;
+  /** largest relative change of any vertex's area between geometry updates (default 1e-3) */
+  tolerance?: number;
+  /** refine (1-to-4) when the mean edge has grown by this factor since the start or the last refinement */
+  refine?: { edgeGrowth: number; maxVertices?: number };
 }
 
 export interface AnalysisSpec {
   /** species whose pattern is measured (default: the painted one) */
   species?: string;
-  /** how patches are cut out: Otsu's rule (default), the mid-range, or a fixed value */
+  /** how patches are cut out: the mid-range (default), Otsu's rule, or a fixed value */
   threshold?: 'otsu' | 'mid-range' | number;
   /** surface eigenpairs for the power spectrum and the predicted mode (default 40 up to 50k vertices, else 0 = off) */
   modes?: number;
@@ -191,6 +213,27 @@ export const SCENARIO_SCHEMA = {
         steadyState: { type: 'number', exclusiveMinimum: 0 },
         solver: { enum: ['auto', 'cg', 'cholesky'] },
         tolerance: { type: 'number', exclusiveMinimum: 0, maximum: 0.1 },
+      },
+    },
+    growth: {
+      type: 'object',
+      additionalProperties: false,
+      required: ['law'],
+      properties: {
+        law: { enum: ['uniform', 'anisotropic', 'normal'] },
+        course: { enum: ['exponential', 'linear', 'logistic'] },
+        rate: { type: 'number' },
+        rates: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 },
+        capacity: { type: 'number', exclusiveMinimum: 1 },
+        centre: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 },
+        speed: { type: 'string', minLength: 1 },
+        tolerance: { type: 'number', exclusiveMinimum: 0, maximum: 0.5 },
+        refine: {
+          type: 'object',
+          additionalProperties: false,
+          required: ['edgeGrowth'],
+          properties: { edgeGrowth: { type: 'number', exclusiveMinimum: 1 }, maxVertices: { type: 'integer', minimum: 100 } },
+        },
       },
     },
     analysis: {

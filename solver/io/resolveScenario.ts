@@ -7,13 +7,18 @@ import { MODELS } from '../kinetics/models/index.ts';
 import type { KineticsModel } from '../kinetics/KineticsModel.ts';
 import { compileKinetics, KineticsError, type CompiledKinetics } from '../kinetics/compileKinetics.ts';
 import { FormulaError } from '../kinetics/FormulaError.ts';
-import { evaluateSurfaceFormula } from '../kinetics/surfaceField.ts';
 import type { ReactionDiffusionSystem } from '../integrate/ReactionDiffusionSystem.ts';
 import { systemExplicitLimit, type ExplicitStepLimit } from '../integrate/explicitStepLimit.ts';
 import { cotanStiffness } from '../fem/cotanStiffness.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
 import { seededRandom } from '../linalg/seededRandom.ts';
+import { numericalSteadyStates } from '../analysis/steadyStates.ts';
+import { smallMatrixEigenvalues } from '../analysis/smallMatrixEigenvalues.ts';
 import { COLORMAP_NAMES, type ColormapName } from './colormap.ts';
+import { evaluateSurfaceFormula, compileSpaceTimeFormula } from '../kinetics/surfaceField.ts';
+import type { GrowthLaw } from '../growth/GrowthLaw.ts';
+import { affineGrowth } from '../growth/affineGrowth.ts';
+import { normalGrowth } from '../growth/normalGrowth.ts';
 
 /** What a mesh loader hands back (Node reads files; the viewer builds shapes in a worker). */
 export interface LoadedMesh {
@@ -40,6 +45,14 @@ export interface AnalysisPlan {
 /** Default number of surface modes for the per-frame spectrum, on meshes up to AUTO_SPECTRUM_VERTICES. */
 export const AUTO_SPECTRUM_MODES = 40;
 export const AUTO_SPECTRUM_VERTICES = 50_000;
+
+export interface GrowthPlan {
+  /** builds the law on a reference surface (the initial one, or its refinement) */
+  makeLaw(reference: Float64Array): GrowthLaw;
+  description: string;
+  tolerance: number;
+  refine?: { edgeGrowth: number; maxVertices: number };
+}
 
 export interface OutputPlan {
   every: number;
@@ -76,6 +89,7 @@ export interface ResolvedScenario {
   explicitLimit?: ExplicitStepLimit;
   output: OutputPlan;
   analysis: AnalysisPlan;
+  growth?: GrowthPlan;
   warnings: string[];
   /** the resolved scenario as plain data, for record.json */
   summary: Record<string, unknown>;
@@ -386,8 +400,8 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   problems.fail(file);
   const step = dt!;
   let solver: 'cg' | 'cholesky' = requested === 'auto' ? 'cg' : requested;
-  let solverReason = requested === 'auto' ? 'auto' : 'requested';
-  if (scheme === 'imex' && requested === 'auto' && n <= AUTO_CHOLESKY_VERTICES) {
+  let solverReason = requested === 'auto' ? (sc.growth ? 'auto: a growing surface changes M + dt·D·K at every geometry update, CG follows it at no cost' : 'auto') : 'requested';
+  if (scheme === 'imex' && requested === 'auto' && !sc.growth && n <= AUTO_CHOLESKY_VERTICES) {
     const stiffnessRatio = step * systemExplicitLimit(system, stiffness, mass).largestRate;
     if (stiffnessRatio > AUTO_CHOLESKY_STIFFNESS) {
       solver = 'cholesky';
@@ -396,15 +410,83 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   }
   const steps = Math.max(1, Math.ceil(end / step - 1e-9));
   if (Math.abs(steps * step - end) > 1e-9 * end) warnings.push(`time.end ${end} is not a whole number of steps of ${step}; the run ends at ${steps * step}`);
+  // the reactions are stepped explicitly in both schemes: forward Euler is stable at the steady
+  // state only if |1 + dt·λ| ≤ 1 for every eigenvalue λ of its Jacobian
+  if (uniformSteady || !model?.steadyStates) {
+    const paramsNow = Object.keys(parameterSpec).map((name, j) => (typeof paramValues[j] === 'number' ? (paramValues[j] as number) : constants[name] ?? 0));
+    const state = uniformSteady ?? numericalSteadyStates(kin, paramsNow, seed)[steadyIndex];
+    if (state) {
+      const eigen = smallMatrixEigenvalues(Array.from(kin.jacobian(state, paramsNow)), nS);
+      let limit = Infinity, worst = 0;
+      for (const [re, im] of eigen) {
+        worst = Math.max(worst, Math.hypot(1 + step * re, step * im));
+        if (re < 0) limit = Math.min(limit, (-2 * re) / (re * re + im * im));
+      }
+      if (worst > 1 + 1e-12) {
+        warnings.push(`time.step ${step} makes the explicit reaction update unstable at the steady state (|1 + dt·λ| = ${worst.toPrecision(4)} > 1): homogeneous oscillations will grow${Number.isFinite(limit) ? `; use time.step < ${limit.toPrecision(3)}` : ''}`);
+      }
+    }
+  }
   const every = sc.output?.every ?? end / 20;
   const everySteps = Math.max(1, Math.round(every / step));
   if (Math.abs(everySteps * step - every) > 1e-9 * every) warnings.push(`output.every ${every} is not a whole number of steps of ${step}; frames come every ${everySteps} steps (${everySteps * step})`);
   const output: OutputPlan = { every: everySteps * step, everySteps, colour: colour!, colormap, range, frames: sc.output?.frames ?? true };
   const analysis: AnalysisPlan = {
     species: measured!,
-    threshold: sc.analysis?.threshold ?? 'otsu',
+    threshold: sc.analysis?.threshold ?? 'mid-range',
     modes: Math.min(sc.analysis?.modes ?? (n <= AUTO_SPECTRUM_VERTICES ? AUTO_SPECTRUM_MODES : 0), n - 1),
   };
+
+  // ---- growth
+  let growth: GrowthPlan | undefined;
+  if (sc.growth) {
+    const g = sc.growth;
+    const course = g.course ?? 'exponential';
+    let centre = g.centre;
+    if (!centre) {
+      const m = lumpedMass(mesh);
+      let a = 0, cx = 0, cy = 0, cz = 0;
+      for (let i = 0; i < n; i++) { a += m[i]; cx += m[i] * mesh.positions[3 * i]; cy += m[i] * mesh.positions[3 * i + 1]; cz += m[i] * mesh.positions[3 * i + 2]; }
+      centre = [cx / a, cy / a, cz / a];
+    }
+    const c = centre;
+    const only = (keys: (keyof typeof g)[], law: string) => {
+      for (const k of ['rate', 'rates', 'speed'] as const) if (g[k] !== undefined && !keys.includes(k)) problems.add(['growth', k], `"${k}" does not apply to law: ${law}`);
+    };
+    if (g.capacity !== undefined && course !== 'logistic') problems.add(['growth', 'capacity'], 'capacity applies to course: logistic');
+    let makeLaw: GrowthPlan['makeLaw'] | undefined;
+    if (g.law === 'uniform') {
+      only(['rate'], 'uniform');
+      if (g.rate === undefined) problems.add(['growth'], 'missing "rate": the relative growth rate of lengths per unit time');
+      else makeLaw = (ref) => affineGrowth(ref, [g.rate!, g.rate!, g.rate!], course, c, g.capacity);
+    } else if (g.law === 'anisotropic') {
+      only(['rates'], 'anisotropic');
+      if (!g.rates) problems.add(['growth'], 'missing "rates": [x, y, z] growth rates');
+      else makeLaw = (ref) => affineGrowth(ref, g.rates!, course, c, g.capacity);
+    } else {
+      only(['speed'], 'normal');
+      if (g.course !== undefined) problems.add(['growth', 'course'], 'course applies to uniform and anisotropic growth');
+      if (!g.speed) problems.add(['growth'], 'missing "speed": a formula in x, y, z, t for the speed along the normal');
+      else {
+        try {
+          const speed = compileSpaceTimeFormula(g.speed, constants);
+          makeLaw = () => normalGrowth(speed, g.speed!);
+        } catch (e) {
+          if (!(e instanceof FormulaError)) throw e;
+          problems.add(['growth', 'speed'], e.message);
+        }
+      }
+    }
+    if (makeLaw) {
+      growth = {
+        makeLaw,
+        description: makeLaw(mesh.positions).description,
+        tolerance: g.tolerance ?? 1e-3,
+        refine: g.refine ? { edgeGrowth: g.refine.edgeGrowth, maxVertices: g.refine.maxVertices ?? 400_000 } : undefined,
+      };
+    }
+    problems.fail(file);
+  }
 
   const summary = {
     name: sc.name ?? file.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, ''),
@@ -416,6 +498,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     time: { scheme, step, end, steps, steadyState: sc.time.steadyState, solver: scheme === 'imex' ? solver : undefined, solverChoice: scheme === 'imex' ? solverReason : undefined, tolerance: scheme === 'imex' ? sc.time.tolerance ?? 1e-8 : undefined },
     output,
     analysis,
+    growth: growth ? { ...sc.growth, centre: sc.growth?.centre ?? undefined, description: growth.description, tolerance: growth.tolerance } : undefined,
     explicitLimit,
   };
   return {
@@ -443,6 +526,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     explicitLimit,
     output,
     analysis,
+    growth,
     warnings,
     summary,
   };

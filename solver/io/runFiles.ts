@@ -74,11 +74,12 @@ export function stateMetrics(state: Float64Array, nS: number, mass: Float64Array
   return out;
 }
 
-/** Columns after the per-species ones: the measured pattern. */
+/** Columns after the per-species ones: the measured pattern, then (growing runs) the surface. */
 export const PATTERN_COLUMNS = ['patches', 'dominant_eigenvalue'] as const;
+export const GROWTH_COLUMNS = ['area', 'growth_factor', 'vertices'] as const;
 
-export function metricsHeader(species: readonly string[]): string {
-  return ['time', 'step', ...species.flatMap((s) => [`${s}_min`, `${s}_mean`, `${s}_max`, `${s}_integral`]), ...PATTERN_COLUMNS].join(',');
+export function metricsHeader(species: readonly string[], growing = false): string {
+  return ['time', 'step', ...species.flatMap((s) => [`${s}_min`, `${s}_mean`, `${s}_max`, `${s}_integral`]), ...PATTERN_COLUMNS, ...(growing ? GROWTH_COLUMNS : [])].join(',');
 }
 
 /** One metrics row; `pattern` values may be undefined (empty cells). */
@@ -100,21 +101,27 @@ export interface SavedState {
   state: Float64Array;
   /** state at the last steady-state check, when the run watches for steady state */
   reference?: Float64Array;
+  /** a growing run: the surface (positions after `refinements` midpoint refinements of the start mesh) and its update schedule */
+  growth?: { refinements: number; lastUpdate: number; nextUpdate: number; edgeAtRefinement: number; positions: Float64Array };
 }
 
 /** state.bin: 8-byte magic, u32 header length, JSON header, padding to 8 bytes, float64 arrays. */
 export function encodeState(s: SavedState): Uint8Array {
-  const { state, reference, ...header } = s;
-  const json = new TextEncoder().encode(JSON.stringify({ ...header, hasReference: reference !== undefined }));
+  const { state, reference, growth, ...header } = s;
+  const growthHeader = growth ? { refinements: growth.refinements, lastUpdate: growth.lastUpdate, nextUpdate: growth.nextUpdate, edgeAtRefinement: growth.edgeAtRefinement } : undefined;
+  const json = new TextEncoder().encode(JSON.stringify({ ...header, hasReference: reference !== undefined, growth: growthHeader }));
   const headEnd = 12 + json.length;
   const start = Math.ceil(headEnd / 8) * 8;
-  const total = start + state.byteLength + (reference?.byteLength ?? 0);
-  const bytes = new Uint8Array(total);
+  const arrays = [state, ...(reference ? [reference] : []), ...(growth ? [growth.positions] : [])];
+  const bytes = new Uint8Array(start + arrays.reduce((a, x) => a + x.byteLength, 0));
   bytes.set(new TextEncoder().encode(MAGIC), 0);
   new DataView(bytes.buffer).setUint32(8, json.length, true);
   bytes.set(json, 12);
-  new Float64Array(bytes.buffer, start, state.length).set(state);
-  if (reference) new Float64Array(bytes.buffer, start + state.byteLength, reference.length).set(reference);
+  let at = start;
+  for (const x of arrays) {
+    new Float64Array(bytes.buffer, at, x.length).set(x);
+    at += x.byteLength;
+  }
   return bytes;
 }
 
@@ -126,7 +133,7 @@ export function decodeState(bytes: Uint8Array, file: string): SavedState {
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   const len = view.getUint32(8, true);
   if (12 + len > bytes.length) fail('truncated header');
-  let header: Omit<SavedState, 'state' | 'reference'> & { hasReference: boolean };
+  let header: Omit<SavedState, 'state' | 'reference' | 'growth'> & { hasReference: boolean; growth?: { refinements: number; lastUpdate: number; nextUpdate: number; edgeAtRefinement: number } };
   try {
     header = JSON.parse(new TextDecoder().decode(bytes.subarray(12, 12 + len)));
   } catch {
@@ -134,12 +141,14 @@ export function decodeState(bytes: Uint8Array, file: string): SavedState {
   }
   const start = Math.ceil((12 + len) / 8) * 8;
   const count = header.vertexCount * header.species.length;
-  const need = start + 8 * count * (header.hasReference ? 2 : 1);
+  const positionsCount = header.growth ? 3 * header.vertexCount : 0;
+  const need = start + 8 * (count * (header.hasReference ? 2 : 1) + positionsCount);
   if (bytes.length !== need) fail(`expected ${need} bytes, found ${bytes.length}`);
   const copy = new Uint8Array(bytes.length - start); // own, aligned copy (Node Buffers are views into a pool)
   copy.set(bytes.subarray(start));
   const state = new Float64Array(copy.buffer, 0, count);
   const reference = header.hasReference ? new Float64Array(copy.buffer, 8 * count, count) : undefined;
-  const { hasReference: _drop, ...rest } = header;
-  return { ...rest, state, reference };
+  const growth = header.growth ? { ...header.growth, positions: new Float64Array(copy.buffer, 8 * count * (header.hasReference ? 2 : 1), positionsCount) } : undefined;
+  const { hasReference: _drop, growth: _g, ...rest } = header;
+  return { ...rest, state, reference, growth };
 }

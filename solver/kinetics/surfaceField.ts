@@ -24,3 +24,18 @@ export function evaluateSurfaceFormula(text: string, mesh: Mesh, constants: Read
   for (let i = 0; i < n; i++) out[i] = f(p[3 * i], p[3 * i + 1], p[3 * i + 2], values);
   return out;
 }
+
+/**
+ * A formula in x, y, z, t and named constants, compiled to a function (a
+ * growth speed, say). Throws FormulaError for anything `parseFormula` refuses.
+ */
+export function compileSpaceTimeFormula(text: string, constants: Readonly<Record<string, number>>): (x: number, y: number, z: number, t: number) => number {
+  const names = Object.keys(constants);
+  const tree = parseFormula(text, new Set(['x', 'y', 'z', 't', ...names]));
+  const map: Record<string, string> = { x: 'x', y: 'y', z: 'z', t: 't' };
+  names.forEach((n, i) => (map[n] = `q[${i}]`));
+  const values = names.map((n) => constants[n]);
+  // generated from the validated tree with our own names (see formulaToCode)
+  const f = new Function('x', 'y', 'z', 't', 'q', `"use strict"; return ${formulaToCode(tree, map)};`) as (x: number, y: number, z: number, t: number, q: number[]) => number;
+  return (x, y, z, t) => f(x, y, z, t, values);
+}
