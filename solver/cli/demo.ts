@@ -1,4 +1,4 @@
-import { mkdirSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { buildShape } from '../../meshes/shapes/index.ts';
 import { meshStatistics } from '../mesh/meshStatistics.ts';
@@ -11,13 +11,13 @@ import { speciesFromProperties, RUN_FILES } from '../io/runFiles.ts';
 import { thresholdComponents } from '../analysis/thresholdComponents.ts';
 
 /** The example scenario the demo runs. */
-export const DEMO_SCENARIO = new URL('../../meshes/examples/limb-paddle.yaml', import.meta.url).pathname;
+export const DEMO_SCENARIO = new URL('../../meshes/examples/limb-paddle-growing.yaml', import.meta.url).pathname;
 
 /**
  * The built-in demonstration: an imagined organism's limb-bud paddle, its mesh
  * statistics and the lowest Laplace–Beltrami eigenmodes — the patterns a Turing
- * mechanism on this shape can select first — then the paddle example scenario
- * (Gierer–Meinhardt with a distal gradient) run to its pattern.
+ * mechanism on this shape can select first — then the growing-paddle example
+ * (Gierer–Meinhardt with a distal gradient while the paddle elongates).
  */
 export async function runDemo(outDir: string): Promise<void> {
   const say = (s: string) => process.stdout.write(s + '\n');
@@ -45,14 +45,17 @@ export async function runDemo(outDir: string): Promise<void> {
   }
   say(`  wrote ${meshFile} and painted modes 1–6 (${files.map((f) => f.split('/').pop()).join(', ')})`);
   say('');
-  say('Reaction–diffusion on the paddle: meshes/examples/limb-paddle.yaml (Gierer–Meinhardt, activator');
-  say('production rising towards the tip). Frames go to placode-demo/paddle-run/frames/.');
+  say('Reaction–diffusion on the growing paddle: meshes/examples/limb-paddle-growing.yaml (Gierer–Meinhardt,');
+  say('activator production rising towards the tip, the paddle lengthening 60 %). Frames: placode-demo/paddle-run/frames/.');
   const runDir = join(outDir, 'paddle-run');
   const outcome = await runScenarioFile(DEMO_SCENARIO, { out: runDir, force: true, progress: 'auto', command: ['demo'] });
   const final = loadMeshFile(join(runDir, RUN_FILES.final));
   const u = speciesFromProperties(final.vertexData).u;
   const patches = thresholdComponents(final.mesh, u).patches;
-  say(`  at t=${outcome.time} the activator u forms ${patches.length} patches above its mid-range; areas ` +
-    patches.map((p) => p.area.toFixed(2)).join(', '));
+  const record = JSON.parse(readFileSync(join(runDir, RUN_FILES.record), 'utf8'));
+  const counts = record.analysis.frames.map((f: { patches: unknown[] }) => f.patches.length);
+  say(`  activator spots along the run: ${counts.slice(1).join(' → ')}; at t=${outcome.time} ${patches.length} patches above the mid-range`);
+  const inserted = record.analysis.events.filter((e: { kind: string }) => e.kind === 'insertion' || e.kind === 'split').length;
+  say(`  ${inserted} spot insertions or splits while the paddle grew (record.json → analysis.events)`);
   say(`  outputs are in ${resolve(outDir)} (open the .ply files in any mesh viewer; colours show u)`);
 }

@@ -144,3 +144,29 @@ growth: {law: anisotropic, course: linear, rates: [0, 0, -2]}
     }
   });
 });
+
+describe('the predicted pattern on a growing surface (stability analysis, recomputed as it grows)', () => {
+  it('the predicted degree rises as the sphere grows: the band is fixed in k², the eigenvalues l(l+1)/R² fall', async () => {
+    const file = scenario('tracked.yaml', `
+mesh: {shape: sphere, vertices: 1000}
+kinetics: {model: schnakenberg, parameters: {gamma: 30}}
+time: {scheme: imex, step: 0.005, end: 10}
+output: {every: 1, colour: u}
+growth: {law: uniform, rate: 0.1}
+analysis: {modes: 10}
+`);
+    const out = join(dir, 'tracked');
+    expect((await run('run', file, '--out', out, '--progress', 'none')).code).toBe(0);
+    const record = JSON.parse(readFileSync(join(out, 'record.json'), 'utf8'));
+    const p: { time: number; area: number; predicted: { eigenvalue: number } | null }[] = record.analysis.predictions;
+    expect(p.length).toBeGreaterThan(5);
+    // each recomputation on a surface whose area grew by 5 % or more
+    for (let k = 1; k < p.length; k++) expect(p[k].area / p[k - 1].area).toBeGreaterThan(1.05);
+    // with R = e^{0.1t} the degree maximising the growth rate of l(l+1)/R² (γ = 30: band 6…15) rises
+    const degree = (e: number, area: number) => Math.round((-1 + Math.sqrt(1 + (e * area) / Math.PI)) / 2); // R² = area/4π
+    const degrees = p.map((x) => degree(x.predicted!.eigenvalue, x.area));
+    expect(degrees[0]).toBe(3);
+    expect(degrees[degrees.length - 1]).toBeGreaterThanOrEqual(7);
+    for (let k = 1; k < degrees.length; k++) expect(degrees[k]).toBeGreaterThanOrEqual(degrees[k - 1]);
+  }, 60_000);
+});
