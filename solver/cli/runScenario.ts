@@ -17,7 +17,7 @@ import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
 import { GrowthDriver, GrowthDegenerationError } from '../growth/GrowthDriver.ts';
 import { transferToRefinement } from '../growth/transferToRefinement.ts';
 import { refineMidpoint } from '../mesh/refineMidpoint.ts';
-import { prolongField } from '../mesh/Refinement.ts';
+import { prolongField, type Refinement } from '../mesh/Refinement.ts';
 import { withPositions, type Mesh } from '../mesh/Mesh.ts';
 import { edgeLengthStats } from '../mesh/edgeLengthStats.ts';
 import { nodeScenarioEnvironment, meshChecksum } from './scenarioEnvironment.ts';
@@ -202,8 +202,10 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   let system = r.system;
   let growthReference = r.mesh.positions;
   let refinements = 0;
+  const refinementList: Refinement[] = [];
   const refineSystem = () => {
     const rf = refineMidpoint(system.mesh);
+    refinementList.push(rf);
     const prolong = (v: number | Float64Array) => (typeof v === 'number' ? v : prolongField(v, rf));
     growthReference = prolongField(growthReference, rf, 3);
     system = { mesh: rf.mesh, kinetics: system.kinetics, parameters: system.parameters.map(prolong), diffusion: system.diffusion.map(prolong) };
@@ -219,7 +221,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   let n = system.mesh.positions.length / 3;
   let driver: GrowthDriver | undefined;
   if (r.growth) {
-    driver = new GrowthDriver(r.growth.makeLaw(growthReference), n, r.growth.tolerance, saved?.step ?? 0);
+    driver = new GrowthDriver(r.growth.makeLaw(growthReference, refinementList), n, r.growth.tolerance, saved?.step ?? 0);
     record.growth ??= { description: r.growth.description, tolerance: r.growth.tolerance, updates: 0, refinements: [] };
   }
   const area0 = meshArea(r.mesh);
@@ -355,7 +357,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
           next.setState(transferToRefinement(state, oldMass, rf, next.mass, nS));
           stepper = next;
           n = system.mesh.positions.length / 3;
-          driver = new GrowthDriver(r.growth!.makeLaw(growthReference), n, r.growth!.tolerance, step);
+          driver = new GrowthDriver(r.growth!.makeLaw(growthReference, refinementList), n, r.growth!.tolerance, step);
           driver.start(stepper, step, dt);
           edgeAtRefinement = meanEdge(stepper.surface);
           previousLabels = undefined;

@@ -20,8 +20,16 @@ export interface Scenario {
 }
 
 export interface GrowthSpec {
-  /** uniform or anisotropic scaling about a centre, or growth along the surface normal */
-  law: 'uniform' | 'anisotropic' | 'normal';
+  /** uniform or anisotropic scaling about a centre, growth along the surface normal, or stage meshes */
+  law: 'uniform' | 'anisotropic' | 'normal' | 'keyframes';
+  /** keyframes: later stages of the surface, each a mesh file at a time (the run's mesh is the stage at t = 0) */
+  keyframes?: { time: number; file: string }[];
+  /** keyframes: piecewise linear, or C¹ cubic (default) */
+  interpolation?: 'linear' | 'cubic';
+  /** keyframes with other connectivity: align each stage to the start first (default none) */
+  align?: 'none' | 'rigid' | 'similarity';
+  /** keyframes with other connectivity: largest tolerated fraction of triangles the map folds or collapses (default 0) */
+  maxFolded?: number;
   /** time course of the scale factors (exponential by default) */
   course?: 'exponential' | 'linear' | 'logistic';
   /** uniform: relative growth rate of lengths per unit time */
@@ -220,7 +228,15 @@ export const SCENARIO_SCHEMA = {
       additionalProperties: false,
       required: ['law'],
       properties: {
-        law: { enum: ['uniform', 'anisotropic', 'normal'] },
+        law: { enum: ['uniform', 'anisotropic', 'normal', 'keyframes'] },
+        keyframes: {
+          type: 'array',
+          minItems: 1,
+          items: { type: 'object', additionalProperties: false, required: ['time', 'file'], properties: { time: { type: 'number', exclusiveMinimum: 0 }, file: { type: 'string', minLength: 1 } } },
+        },
+        interpolation: { enum: ['linear', 'cubic'] },
+        align: { enum: ['none', 'rigid', 'similarity'] },
+        maxFolded: { type: 'number', minimum: 0, maximum: 1 },
         course: { enum: ['exponential', 'linear', 'logistic'] },
         rate: { type: 'number' },
         rates: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 },

@@ -19,6 +19,9 @@ import { evaluateSurfaceFormula, compileSpaceTimeFormula } from '../kinetics/sur
 import type { GrowthLaw } from '../growth/GrowthLaw.ts';
 import { affineGrowth } from '../growth/affineGrowth.ts';
 import { normalGrowth } from '../growth/normalGrowth.ts';
+import { keyframeGrowth } from '../growth/keyframeGrowth.ts';
+import { mapOntoSurface } from '../growth/mapOntoSurface.ts';
+import { prolongField, type Refinement } from '../mesh/Refinement.ts';
 
 /** What a mesh loader hands back (Node reads files; the viewer builds shapes in a worker). */
 export interface LoadedMesh {
@@ -47,8 +50,8 @@ export const AUTO_SPECTRUM_MODES = 40;
 export const AUTO_SPECTRUM_VERTICES = 50_000;
 
 export interface GrowthPlan {
-  /** builds the law on a reference surface (the initial one, or its refinement) */
-  makeLaw(reference: Float64Array): GrowthLaw;
+  /** builds the law on a reference surface: the initial one, or its refinement through `refinements` */
+  makeLaw(reference: Float64Array, refinements: readonly Refinement[]): GrowthLaw;
   description: string;
   tolerance: number;
   refine?: { edgeGrowth: number; maxVertices: number };
@@ -455,7 +458,52 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     };
     if (g.capacity !== undefined && course !== 'logistic') problems.add(['growth', 'capacity'], 'capacity applies to course: logistic');
     let makeLaw: GrowthPlan['makeLaw'] | undefined;
-    if (g.law === 'uniform') {
+    for (const k of ['keyframes', 'interpolation', 'align', 'maxFolded'] as const) {
+      if (g[k] !== undefined && g.law !== 'keyframes') problems.add(['growth', k], `"${k}" applies to law: keyframes`);
+    }
+    if (g.law === 'keyframes') {
+      only([], 'keyframes');
+      if (g.course !== undefined || g.centre !== undefined || g.capacity !== undefined) problems.add(['growth'], 'course, centre and capacity apply to scaling laws, not to keyframes');
+      if (!g.keyframes) problems.add(['growth'], 'missing "keyframes": a list of {time, file} stages after the start');
+      else {
+        const times = [0];
+        const stages: Float64Array[] = [Float64Array.from(mesh.positions)];
+        g.keyframes.forEach((kf, j) => {
+          const path = ['growth', 'keyframes', j];
+          if (kf.time <= times[times.length - 1]) problems.add([...path, 'time'], `keyframe times must increase: ${kf.time} follows ${times[times.length - 1]}`);
+          let stage: LoadedMesh;
+          try {
+            stage = env.loadMesh({ file: kf.file });
+          } catch (e) {
+            problems.add([...path, 'file'], (e as Error).message);
+            return;
+          }
+          const same = stage.mesh.triangles.length === mesh.triangles.length && stage.mesh.positions.length === mesh.positions.length && stage.mesh.triangles.every((v, i) => v === mesh.triangles[i]);
+          if (same) {
+            stages.push(Float64Array.from(stage.mesh.positions));
+          } else {
+            const map = mapOntoSurface(mesh, stage.mesh, g.align ?? 'none');
+            const bad = map.folded.length + map.collapsed.length;
+            const nF = mesh.triangles.length / 3;
+            if (bad > (g.maxFolded ?? 0) * nF) {
+              const t = map.folded[0] ?? map.collapsed[0];
+              const tri = mesh.triangles;
+              const where = [0, 1, 2].map((d) => ((map.positions[3 * tri[3 * t] + d] + map.positions[3 * tri[3 * t + 1] + d] + map.positions[3 * tri[3 * t + 2] + d]) / 3).toPrecision(3));
+              problems.add([...path, 'file'], `carrying the mesh onto this stage by closest points folds ${map.folded.length} and collapses ${map.collapsed.length} of ${nF} triangles (first: triangle ${t} near (${where.join(', ')})); align it (align: similarity), use a closer stage, or allow some with maxFolded`);
+              return;
+            }
+            if (bad) warnings.push(`keyframe ${j} (${kf.file}): the closest-point map folds ${map.folded.length} and collapses ${map.collapsed.length} triangles (tolerated by maxFolded)`);
+            stages.push(map.positions);
+          }
+          times.push(kf.time);
+        });
+        const interpolation = g.interpolation ?? 'cubic';
+        makeLaw = (_reference, refinements) => {
+          const refined = stages.map((x) => refinements.reduce((acc, rf) => prolongField(acc, rf, 3), x));
+          return keyframeGrowth(times, refined, interpolation, `${g.keyframes!.length + 1} keyframes at t = ${times.join(', ')}, ${interpolation} interpolation`);
+        };
+      }
+    } else if (g.law === 'uniform') {
       only(['rate'], 'uniform');
       if (g.rate === undefined) problems.add(['growth'], 'missing "rate": the relative growth rate of lengths per unit time');
       else makeLaw = (ref) => affineGrowth(ref, [g.rate!, g.rate!, g.rate!], course, c, g.capacity);
@@ -480,7 +528,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     if (makeLaw) {
       growth = {
         makeLaw,
-        description: makeLaw(mesh.positions).description,
+        description: makeLaw(mesh.positions, []).description,
         tolerance: g.tolerance ?? 1e-3,
         refine: g.refine ? { edgeGrowth: g.refine.edgeGrowth, maxVertices: g.refine.maxVertices ?? 400_000 } : undefined,
       };
