@@ -347,7 +347,9 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     try {
       if (driver!.maybeUpdate(stepper, step, dt, force)) {
         record.growth!.updates++;
-        if (r.growth!.refine && meanEdge(stepper.surface) >= r.growth!.refine.edgeGrowth * edgeAtRefinement && 4 * n <= r.growth!.refine.maxVertices) {
+        const rule = r.growth!.refine;
+        const edge = rule ? meanEdge(stepper.surface) : 0;
+        if (rule && (edge >= rule.edgeGrowth * edgeAtRefinement || edge > rule.maxEdge) && 4 * n <= rule.maxVertices) {
           const before = n;
           const state = stepper.state;
           const oldMass = stepper.mass;

@@ -44,8 +44,11 @@ export interface GrowthSpec {
   speed?: string;
   /** largest relative change of any vertex's area between geometry updates (default 1e-3) */
   tolerance?: number;
-  /** refine (1-to-4) when the mean edge has grown by this factor since the start or the last refinement */
-  refine?: { edgeGrowth: number; maxVertices?: number };
+  /**
+   * refine (1-to-4) when the mean edge has grown by `edgeGrowth` since the start or the last
+   * refinement, or has become longer than the fastest-growing wavelength over `perWavelength`
+   */
+  refine?: { edgeGrowth?: number; perWavelength?: number; maxVertices?: number };
 }
 
 export interface AnalysisSpec {
@@ -247,8 +250,8 @@ export const SCENARIO_SCHEMA = {
         refine: {
           type: 'object',
           additionalProperties: false,
-          required: ['edgeGrowth'],
-          properties: { edgeGrowth: { type: 'number', exclusiveMinimum: 1 }, maxVertices: { type: 'integer', minimum: 100 } },
+          minProperties: 1,
+          properties: { edgeGrowth: { type: 'number', exclusiveMinimum: 1 }, perWavelength: { type: 'number', exclusiveMinimum: 0 }, maxVertices: { type: 'integer', minimum: 100 } },
         },
       },
     },

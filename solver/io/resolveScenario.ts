@@ -14,6 +14,7 @@ import { lumpedMass } from '../fem/lumpedMass.ts';
 import { seededRandom } from '../linalg/seededRandom.ts';
 import { numericalSteadyStates } from '../analysis/steadyStates.ts';
 import { smallMatrixEigenvalues } from '../analysis/smallMatrixEigenvalues.ts';
+import { turingAnalysis } from '../analysis/dispersion.ts';
 import { COLORMAP_NAMES, type ColormapName } from './colormap.ts';
 import { evaluateSurfaceFormula, compileSpaceTimeFormula } from '../kinetics/surfaceField.ts';
 import type { GrowthLaw } from '../growth/GrowthLaw.ts';
@@ -54,7 +55,7 @@ export interface GrowthPlan {
   makeLaw(reference: Float64Array, refinements: readonly Refinement[]): GrowthLaw;
   description: string;
   tolerance: number;
-  refine?: { edgeGrowth: number; maxVertices: number };
+  refine?: { edgeGrowth: number; maxEdge: number; maxVertices: number };
 }
 
 export interface OutputPlan {
@@ -458,6 +459,20 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     };
     if (g.capacity !== undefined && course !== 'logistic') problems.add(['growth', 'capacity'], 'capacity applies to course: logistic');
     let makeLaw: GrowthPlan['makeLaw'] | undefined;
+    if (g.refine && g.refine.edgeGrowth === undefined && g.refine.perWavelength === undefined) problems.add(['growth', 'refine'], 'say when to refine: edgeGrowth (a factor since the start) and/or perWavelength (edges per fastest-growing wavelength)');
+    /** the longest mean edge that keeps `perWavelength` edges per fastest-growing wavelength 2π/√k² */
+    const refineEdgeFor = (perWavelength: number | undefined): number => {
+      if (perWavelength === undefined) return Infinity;
+      const p = Object.keys(parameterSpec).map((name, j) => (typeof paramValues[j] === 'number' ? (paramValues[j] as number) : constants[name] ?? 0));
+      const d = diffusion.map((x) => (typeof x === 'number' ? x : x.reduce((a, b) => a + b, 0) / x.length));
+      const state = uniformSteady ?? numericalSteadyStates(kin, p, seed)[steadyIndex];
+      const fastest = state ? turingAnalysis(Array.from(kin.jacobian(state, p)), d).fastest : null;
+      if (!fastest) {
+        problems.add(['growth', 'refine', 'perWavelength'], 'the kinetics has no unstable band here, so no pattern wavelength to refine for; use edgeGrowth');
+        return Infinity;
+      }
+      return (2 * Math.PI) / Math.sqrt(fastest.k2) / perWavelength;
+    };
     for (const k of ['keyframes', 'interpolation', 'align', 'maxFolded'] as const) {
       if (g[k] !== undefined && g.law !== 'keyframes') problems.add(['growth', k], `"${k}" applies to law: keyframes`);
     }
@@ -530,7 +545,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
         makeLaw,
         description: makeLaw(mesh.positions, []).description,
         tolerance: g.tolerance ?? 1e-3,
-        refine: g.refine ? { edgeGrowth: g.refine.edgeGrowth, maxVertices: g.refine.maxVertices ?? 400_000 } : undefined,
+        refine: g.refine ? { edgeGrowth: g.refine.edgeGrowth ?? Infinity, maxEdge: refineEdgeFor(g.refine.perWavelength), maxVertices: g.refine.maxVertices ?? 400_000 } : undefined,
       };
     }
     problems.fail(file);

@@ -135,6 +135,8 @@ growth: {law: anisotropic, course: linear, rates: [0, 0, -2]}
       ['growth: {law: anisotropic, rates: [1, 2, 3], speed: "x"}', /growth\.speed: "speed" does not apply to law: anisotropic/],
       ['growth: {law: twist}', /growth\.law: must be one of "uniform", "anisotropic", "normal"/],
       ['growth: {law: uniform, rate: 1, capacity: 3}', /growth\.capacity: capacity applies to course: logistic/],
+      ['growth: {law: uniform, rate: 1, refine: {maxVertices: 1000}}', /growth\.refine: say when to refine: edgeGrowth/],
+      ['growth: {law: uniform, rate: 1, keyframes: [{time: 1, file: a.ply}]}', /growth\.keyframes: "keyframes" applies to law: keyframes/],
     ];
     for (const [growth, pattern] of cases) {
       const file = scenario('badgrowth.yaml', `mesh: {shape: sphere, vertices: 100}\nkinetics: {model: schnakenberg}\ntime: {end: 1}\n${growth}\n`);
@@ -143,6 +145,28 @@ growth: {law: anisotropic, course: linear, rates: [0, 0, -2]}
       expect(r.err, growth).toMatch(pattern);
     }
   });
+});
+
+describe('refinement for the pattern wavelength', () => {
+  it('refines until the mean edge is below the fastest wavelength over perWavelength', async () => {
+    const file = scenario('pw.yaml', `
+mesh: {shape: sphere, vertices: 500}
+kinetics: {model: schnakenberg, parameters: {gamma: 30}}
+time: {scheme: imex, step: 0.005, end: 8}
+output: {every: 4}
+growth: {law: uniform, rate: 0.1, refine: {perWavelength: 12}}
+analysis: {modes: 0}
+`);
+    const out = join(dir, 'pw');
+    expect((await run('run', file, '--out', out, '--progress', 'none')).code).toBe(0);
+    const record = JSON.parse(readFileSync(join(out, 'record.json'), 'utf8'));
+    expect(record.growth.refinements.map((x: { to: number }) => x.to)).toEqual([1962, 7842]);
+    // Schnakenberg a = 0.1, b = 0.9, d = 10, γ = 30: the fastest k² lies in 6 < k² < 15, so the
+    // wavelength 2π/√k² is at least 2π/√15 ≈ 1.62 and the refined edges must be below 1.62/12
+    const { edgeLengthStats } = await import('../../solver/mesh/edgeLengthStats.ts');
+    const final = loadMeshFile(join(out, 'final.ply')).mesh;
+    expect(edgeLengthStats(final).mean).toBeLessThan((2 * Math.PI) / Math.sqrt(15) / 12);
+  }, 60_000);
 });
 
 describe('the predicted pattern on a growing surface (stability analysis, recomputed as it grows)', () => {
