@@ -81,7 +81,7 @@ interface RunAnalysis {
   prediction?: { state: number; band: [number, number] | null; fastest: { k2: number; rate: number } | null; predicted: { index: number; eigenvalue: number; rate: number; multiplicity: number } | null; notes: string[] };
   frames: { time: number; step: number; threshold: number; patches: { area: number; centroid: [number, number, number] }[]; dominantEigenvalue?: number; dominantFraction?: number }[];
   events: { time: number; kind: string; before: number[]; after: number[] }[];
-  /** growing runs: the predicted mode as the surface grows (eigenpairs recomputed when the area has changed by 5 %) */
+  /** growing runs: the predicted mode as the surface grows (eigenpairs recomputed at every output time) */
   predictions?: { time: number; area: number; vertices: number; predicted: { index: number; eigenvalue: number; rate: number; multiplicity: number } | null }[];
   /** time the run reached steady state, when it stopped there */
   timeToSteadyState?: number;
@@ -228,11 +228,10 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   let edgeAtRefinement = saved?.growth?.edgeAtRefinement ?? meanEdge(system.mesh);
   // pattern measures: vertex adjacency, and surface eigenpairs for the spectrum and the prediction
   let eig: Eigenpairs | undefined;
-  let eigArea = 0;
   const linearBand = growing && r.analysis.modes > 0 ? predictedBand(r) : null;
   const updateEigenpairs = (atStep: number) => {
     const surface = stepper.surface;
-    eigArea = meshArea(surface);
+    const eigArea = meshArea(surface);
     // enough modes to reach the unstable band on the grown surface (Weyl: about area·k²/(4π) below k²)
     const band = linearBand;
     const weyl = band && Number.isFinite(band[1]) ? Math.ceil((1.25 * eigArea * band[1]) / (4 * Math.PI)) + 12 : 0;
@@ -243,7 +242,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     if (atStep === 0) record.analysis.prediction = prediction;
     if (growing) (record.analysis.predictions ??= []).push({ time: atStep * dt, area: eigArea, vertices: n, predicted: rep.predicted });
   };
-  if (r.analysis.modes > 0 && (!saved || growing)) updateEigenpairs(saved?.step ?? 0);
+  if (r.analysis.modes > 0 && !growing) updateEigenpairs(saved?.step ?? 0);
   if (!growing) forgetMeshTopology(r.mesh); // the stepper holds all it needs; free edges and the CSR pattern
   const measuredIndex = r.species.indexOf(r.analysis.species);
   const measure = (state: Float64Array) => {
@@ -282,7 +281,8 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     const tw = performance.now();
     const lastRow = metricRows[metricRows.length - 1];
     if (lastRow === undefined || Number(lastRow.split(',')[1]) !== atStep) {
-      if (growing && r.analysis.modes > 0 && Math.abs(meshArea(stepper.surface) / eigArea - 1) > EIGEN_REFRESH) updateEigenpairs(atStep);
+      // a growing surface: eigenpairs of the surface as it is now (a pure function of it, so resumed runs agree)
+      if (growing && r.analysis.modes > 0) updateEigenpairs(atStep);
       const pattern = measure(state);
       const a = record.analysis;
       const count = pattern.patches.length;
@@ -455,8 +455,6 @@ function predictedBand(r: ResolvedScenario): [number, number] | null {
   return state ? turingAnalysis(state.jacobian, values.diffusion).band : null;
 }
 
-/** Relative change of the surface area after which a growing run recomputes its eigenpairs. */
-const EIGEN_REFRESH = 0.05;
 /** The most eigenpairs a growing run computes to follow its predicted mode. */
 const MAX_TRACKED_MODES = 300;
 
