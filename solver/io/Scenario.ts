@@ -40,8 +40,10 @@ export interface GrowthSpec {
   capacity?: number;
   /** centre of scaling (default: the surface's area centroid) */
   centre?: [number, number, number];
-  /** normal: speed along the normal, a formula in x, y, z, t and the kinetics parameters */
-  speed?: string;
+  /** normal: speed along the normal, a formula in x, y, z, t and the kinetics parameters, or per-vertex values from the mesh file */
+  speed?: string | { vertexData: string };
+  /** normal: a local areal growth rate (formula or per-vertex values); the surface also moves tangentially, putting area where it is high */
+  expansion?: string | { vertexData: string };
   /** largest relative change of any vertex's area between geometry updates (default 1e-3) */
   tolerance?: number;
   /**
@@ -245,7 +247,14 @@ export const SCENARIO_SCHEMA = {
         rates: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 },
         capacity: { type: 'number', exclusiveMinimum: 1 },
         centre: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 },
-        speed: { type: 'string', minLength: 1 },
+        expansion: {
+          description: 'a formula in x, y, z, t or {vertexData: NAME}',
+          oneOf: [{ type: 'string', minLength: 1 }, { type: 'object', additionalProperties: false, required: ['vertexData'], properties: { vertexData: { type: 'string', minLength: 1 } } }],
+        },
+        speed: {
+          description: 'a formula in x, y, z, t or {vertexData: NAME}',
+          oneOf: [{ type: 'string', minLength: 1 }, { type: 'object', additionalProperties: false, required: ['vertexData'], properties: { vertexData: { type: 'string', minLength: 1 } } }],
+        },
         tolerance: { type: 'number', exclusiveMinimum: 0, maximum: 0.5 },
         refine: {
           type: 'object',

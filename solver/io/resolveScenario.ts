@@ -19,7 +19,7 @@ import { COLORMAP_NAMES, type ColormapName } from './colormap.ts';
 import { evaluateSurfaceFormula, compileSpaceTimeFormula } from '../kinetics/surfaceField.ts';
 import type { GrowthLaw } from '../growth/GrowthLaw.ts';
 import { affineGrowth } from '../growth/affineGrowth.ts';
-import { normalGrowth } from '../growth/normalGrowth.ts';
+import { normalGrowth, type VertexSpeed } from '../growth/normalGrowth.ts';
 import { keyframeGrowth } from '../growth/keyframeGrowth.ts';
 import { mapOntoSurface } from '../growth/mapOntoSurface.ts';
 import { prolongField, type Refinement } from '../mesh/Refinement.ts';
@@ -455,7 +455,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     }
     const c = centre;
     const only = (keys: (keyof typeof g)[], law: string) => {
-      for (const k of ['rate', 'rates', 'speed'] as const) if (g[k] !== undefined && !keys.includes(k)) problems.add(['growth', k], `"${k}" does not apply to law: ${law}`);
+      for (const k of ['rate', 'rates', 'speed', 'expansion'] as const) if (g[k] !== undefined && !keys.includes(k)) problems.add(['growth', k], `"${k}" does not apply to law: ${law}`);
     };
     if (g.capacity !== undefined && course !== 'logistic') problems.add(['growth', 'capacity'], 'capacity applies to course: logistic');
     let makeLaw: GrowthPlan['makeLaw'] | undefined;
@@ -527,17 +527,38 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
       if (!g.rates) problems.add(['growth'], 'missing "rates": [x, y, z] growth rates');
       else makeLaw = (ref) => affineGrowth(ref, g.rates!, course, c, g.capacity);
     } else {
-      only(['speed'], 'normal');
+      only(['speed', 'expansion'], 'normal');
       if (g.course !== undefined) problems.add(['growth', 'course'], 'course applies to uniform and anisotropic growth');
-      if (!g.speed) problems.add(['growth'], 'missing "speed": a formula in x, y, z, t for the speed along the normal');
-      else {
-        try {
-          const speed = compileSpaceTimeFormula(g.speed, constants);
-          makeLaw = () => normalGrowth(speed, g.speed!);
-        } catch (e) {
-          if (!(e instanceof FormulaError)) throw e;
-          problems.add(['growth', 'speed'], e.message);
+      if (!g.speed && !g.expansion) problems.add(['growth'], 'missing "speed" (along the normal) or "expansion" (local areal rate): a formula in x, y, z, t or {vertexData: NAME}');
+      /** a per-vertex field of the growth section, carried through refinements */
+      const vertexField = (key: 'speed' | 'expansion'): ((refinements: readonly Refinement[]) => VertexSpeed) | undefined => {
+        const spec = g[key];
+        if (spec === undefined) return undefined;
+        if (typeof spec === 'string') {
+          try {
+            const f = compileSpaceTimeFormula(spec, constants);
+            return () => (_i, x, y, z, t) => f(x, y, z, t);
+          } catch (e) {
+            if (!(e instanceof FormulaError)) throw e;
+            problems.add(['growth', key], e.message);
+            return undefined;
+          }
         }
+        const values = loaded.vertexData[spec.vertexData];
+        if (!values) {
+          problems.add(['growth', key], `the mesh has no per-vertex value "${spec.vertexData}"${Object.keys(loaded.vertexData).length ? `; it has ${Object.keys(loaded.vertexData).join(', ')}` : ''}`);
+          return undefined;
+        }
+        return (refinements) => {
+          const v = refinements.reduce<Float64Array>((acc, rf) => prolongField(acc, rf), Float64Array.from(values));
+          return (i) => v[i];
+        };
+      };
+      const speed = vertexField('speed'), expansion = vertexField('expansion');
+      const text = (spec: string | { vertexData: string }) => (typeof spec === 'string' ? spec : `the per-vertex values "${spec.vertexData}"`);
+      const description = [g.speed !== undefined ? `growth along the normal at speed ${text(g.speed)}` : '', g.expansion !== undefined ? `tangential expansion at areal rate ${text(g.expansion)}` : ''].filter(Boolean).join(', with ');
+      if ((g.speed === undefined || speed) && (g.expansion === undefined || expansion) && (speed || expansion)) {
+        makeLaw = (_reference, refinements) => normalGrowth(speed?.(refinements), description, expansion?.(refinements));
       }
     }
     if (makeLaw) {
