@@ -136,6 +136,9 @@ growth: {law: anisotropic, course: linear, rates: [0, 0, -2]}
       ['growth: {law: twist}', /growth\.law: must be one of "uniform", "anisotropic", "normal"/],
       ['growth: {law: uniform, rate: 1, capacity: 3}', /growth\.capacity: capacity applies to course: logistic/],
       ['growth: {law: uniform, rate: 1, refine: {maxVertices: 1000}}', /growth\.refine: say when to refine: edgeGrowth/],
+      ['growth: {law: normal}', /growth: missing "speed" \(along the normal\) or "expansion"/],
+      ['growth: {law: normal, speed: {vertexData: rate}}', /growth\.speed: the mesh has no per-vertex value "rate"/],
+      ['growth: {law: uniform, rate: 1, expansion: "x"}', /growth\.expansion: "expansion" does not apply to law: uniform/],
       ['growth: {law: uniform, rate: 1, keyframes: [{time: 1, file: a.ply}]}', /growth\.keyframes: "keyframes" applies to law: keyframes/],
     ];
     for (const [growth, pattern] of cases) {
@@ -145,6 +148,36 @@ growth: {law: anisotropic, course: linear, rates: [0, 0, -2]}
       expect(r.err, growth).toMatch(pattern);
     }
   });
+});
+
+describe('growth fields from the mesh file', () => {
+  it('per-vertex normal speeds and a tangential expansion move the surface and keep Σ M U', async () => {
+    const { saveMeshFile } = await import('../../solver/io/meshFiles.ts');
+    const { buildShape } = await import('../../meshes/shapes/index.ts');
+    const { mesh } = buildShape({ shape: 'limb-bud', vertices: 1500 });
+    const n = mesh.positions.length / 3;
+    const rate = new Float64Array(n);
+    for (let i = 0; i < n; i++) rate[i] = 0.2 * Math.max(0, mesh.positions[3 * i] - 2); // the distal third
+    saveMeshFile(join(dir, 'bud.ply'), mesh, { properties: { rate } });
+    const file = scenario('bud.yaml', `
+mesh: {file: bud.ply}
+kinetics: {species: [u], reactions: {u: "0"}}
+diffusion: {u: 0.05}
+initial: {values: {u: "1 + 0.3*y"}}
+time: {scheme: imex, step: 0.01, end: 2}
+output: {every: 1}
+growth: {law: normal, speed: {vertexData: rate}, expansion: "0.1*x"}
+analysis: {modes: 0}
+`);
+    const out = join(dir, 'bud');
+    const r = await run('run', file, '--out', out, '--progress', 'none');
+    expect(r.code, r.err).toBe(0);
+    const rows = readFileSync(join(out, 'metrics.csv'), 'utf8').trim().split('\n').slice(1).map((l) => l.split(',').map(Number));
+    for (const x of rows) expect(x[5]).toBeCloseTo(rows[0][5], 10); // u_integral
+    expect(rows[2][8]).toBeGreaterThan(rows[0][8]); // area grew (normal speed outward at the tip)
+    const record = JSON.parse(readFileSync(join(out, 'record.json'), 'utf8'));
+    expect(record.growth.description).toBe('growth along the normal at speed the per-vertex values "rate", with tangential expansion at areal rate 0.1*x');
+  }, 60_000);
 });
 
 describe('refinement for the pattern wavelength', () => {
