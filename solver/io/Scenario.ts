@@ -34,8 +34,10 @@ export interface GrowthSpec {
   course?: 'exponential' | 'linear' | 'logistic';
   /** uniform: relative growth rate of lengths per unit time */
   rate?: number;
-  /** anisotropic: rates along x, y, z */
+  /** anisotropic: rates along x, y, z (or along `axes`) */
   rates?: [number, number, number];
+  /** anisotropic: three orthogonal directions for the rates (default x, y, z) */
+  axes?: [[number, number, number], [number, number, number], [number, number, number]];
   /** logistic: the final scale factor (default 2) */
   capacity?: number;
   /** centre of scaling (default: the surface's area centroid) */
@@ -245,6 +247,7 @@ export const SCENARIO_SCHEMA = {
         course: { enum: ['exponential', 'linear', 'logistic'] },
         rate: { type: 'number' },
         rates: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 },
+        axes: { type: 'array', minItems: 3, maxItems: 3, items: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 } },
         capacity: { type: 'number', exclusiveMinimum: 1 },
         centre: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 },
         expansion: {

@@ -455,7 +455,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     }
     const c = centre;
     const only = (keys: (keyof typeof g)[], law: string) => {
-      for (const k of ['rate', 'rates', 'speed', 'expansion'] as const) if (g[k] !== undefined && !keys.includes(k)) problems.add(['growth', k], `"${k}" does not apply to law: ${law}`);
+      for (const k of ['rate', 'rates', 'axes', 'speed', 'expansion'] as const) if (g[k] !== undefined && !keys.includes(k)) problems.add(['growth', k], `"${k}" does not apply to law: ${law}`);
     };
     if (g.capacity !== undefined && course !== 'logistic') problems.add(['growth', 'capacity'], 'capacity applies to course: logistic');
     let makeLaw: GrowthPlan['makeLaw'] | undefined;
@@ -523,9 +523,18 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
       if (g.rate === undefined) problems.add(['growth'], 'missing "rate": the relative growth rate of lengths per unit time');
       else makeLaw = (ref) => affineGrowth(ref, [g.rate!, g.rate!, g.rate!], course, c, g.capacity);
     } else if (g.law === 'anisotropic') {
-      only(['rates'], 'anisotropic');
+      only(['rates', 'axes'], 'anisotropic');
+      let axes: [number, number, number][] | undefined;
+      if (g.axes) {
+        axes = g.axes.map((a) => { const l = Math.hypot(...a); return a.map((x) => x / l) as [number, number, number]; });
+        const dot = (u: number[], v: number[]) => u[0] * v[0] + u[1] * v[1] + u[2] * v[2];
+        if (axes.some((a) => !a.every(Number.isFinite)) || Math.abs(dot(axes[0], axes[1])) > 1e-6 || Math.abs(dot(axes[0], axes[2])) > 1e-6 || Math.abs(dot(axes[1], axes[2])) > 1e-6) {
+          problems.add(['growth', 'axes'], 'the three axes must be non-zero and mutually perpendicular');
+          axes = undefined;
+        }
+      }
       if (!g.rates) problems.add(['growth'], 'missing "rates": [x, y, z] growth rates');
-      else makeLaw = (ref) => affineGrowth(ref, g.rates!, course, c, g.capacity);
+      else makeLaw = (ref) => affineGrowth(ref, g.rates!, course, c, g.capacity, axes);
     } else {
       only(['speed', 'expansion'], 'normal');
       if (g.course !== undefined) problems.add(['growth', 'course'], 'course applies to uniform and anisotropic growth');

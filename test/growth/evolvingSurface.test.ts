@@ -129,3 +129,18 @@ describe('tangential expansion', () => {
     expect(errs[1]).toBeLessThan(0.01);
   });
 });
+
+describe('anisotropic growth along chosen axes', () => {
+  it('stretches the chosen direction only: a unit sphere becomes an ellipsoid along (1, 1, 0)/√2', () => {
+    const sphere = icosphere(6, 1);
+    const s = Math.SQRT1_2;
+    const law = affineGrowth(sphere.positions.slice(), [Math.log(2), 0, 0], 'exponential', [0, 0, 0], undefined, [[s, s, 0], [-s, s, 0], [0, 0, 1]]);
+    const out = new Float64Array(sphere.positions.length);
+    law.advance(sphere, 0, 1, out); // ρ = 2 along the first axis
+    for (let i = 0; i < out.length; i += 3) {
+      const along = (out[i] + out[i + 1]) * s, across = (-out[i] + out[i + 1]) * s;
+      // on the ellipsoid (along/2)² + across² + z² = 1
+      expect((along / 2) ** 2 + across ** 2 + out[i + 2] ** 2).toBeCloseTo(1, 12);
+    }
+  });
+});
