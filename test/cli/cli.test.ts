@@ -1,24 +1,10 @@
-import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { main } from '../../solver/cli/main.ts';
+import { runCli as run } from '../fixtures/cli.ts';
 import { parseMeshFile } from '../../solver/io/parseMeshFile.ts';
 
-async function run(...argv: string[]): Promise<{ code: number; out: string; err: string }> {
-  let out = '', err = '';
-  const o = vi.spyOn(process.stdout, 'write').mockImplementation((s: string | Uint8Array) => { out += String(s); return true; });
-  const e = vi.spyOn(process.stderr, 'write').mockImplementation((s: string | Uint8Array) => { err += String(s); return true; });
-  process.exitCode = undefined;
-  try {
-    const code = await main(argv);
-    return { code, out, err };
-  } finally {
-    o.mockRestore();
-    e.mockRestore();
-    process.exitCode = undefined;
-  }
-}
 
 let dir = '';
 beforeAll(() => { dir = mkdtempSync(join(tmpdir(), 'placode-cli-')); });

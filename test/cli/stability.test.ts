@@ -1,21 +1,10 @@
-import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { main } from '../../solver/cli/main.ts';
+import { runCli as run } from '../fixtures/cli.ts';
 import { loadMeshFile } from '../../solver/io/meshFiles.ts';
 
-async function run(...argv: string[]): Promise<{ code: number; out: string; err: string }> {
-  let out = '', err = '';
-  const o = vi.spyOn(process.stdout, 'write').mockImplementation((s: string | Uint8Array) => { out += String(s); return true; });
-  const e = vi.spyOn(process.stderr, 'write').mockImplementation((s: string | Uint8Array) => { err += String(s); return true; });
-  try {
-    return { code: await main(argv), out, err };
-  } finally {
-    o.mockRestore();
-    e.mockRestore();
-  }
-}
 
 let dir = '';
 beforeAll(() => { dir = mkdtempSync(join(tmpdir(), 'placode-stab-')); });

@@ -1,8 +1,8 @@
-import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { main } from '../../solver/cli/main.ts';
+import { runCli as run } from '../fixtures/cli.ts';
 import { runScenarioFile } from '../../solver/cli/runScenario.ts';
 import { loadMeshFile } from '../../solver/io/meshFiles.ts';
 import { meshArea } from '../../solver/mesh/triangleAreas.ts';
@@ -12,17 +12,6 @@ import { lumpedMass } from '../../solver/fem/lumpedMass.ts';
 import { transferToRefinement } from '../../solver/growth/transferToRefinement.ts';
 import { observedOrder } from '../fixtures/meshes.ts';
 
-async function run(...argv: string[]): Promise<{ code: number; out: string; err: string }> {
-  let out = '', err = '';
-  const o = vi.spyOn(process.stdout, 'write').mockImplementation((s: string | Uint8Array) => { out += String(s); return true; });
-  const e = vi.spyOn(process.stderr, 'write').mockImplementation((s: string | Uint8Array) => { err += String(s); return true; });
-  try {
-    return { code: await main(argv), out, err };
-  } finally {
-    o.mockRestore();
-    e.mockRestore();
-  }
-}
 
 let dir = '';
 beforeAll(() => { dir = mkdtempSync(join(tmpdir(), 'placode-grow-')); });

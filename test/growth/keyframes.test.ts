@@ -1,8 +1,8 @@
-import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { main } from '../../solver/cli/main.ts';
+import { runCli as run } from '../fixtures/cli.ts';
 import { icosphere } from '../../meshes/shapes/icosphere.ts';
 import { buildShape } from '../../meshes/shapes/index.ts';
 import { saveMeshFile } from '../../solver/io/meshFiles.ts';
@@ -10,17 +10,6 @@ import { keyframeGrowth } from '../../solver/growth/keyframeGrowth.ts';
 import { mapOntoSurface } from '../../solver/growth/mapOntoSurface.ts';
 import type { Mesh } from '../../solver/mesh/Mesh.ts';
 
-async function run(...argv: string[]): Promise<{ code: number; out: string; err: string }> {
-  let out = '', err = '';
-  const o = vi.spyOn(process.stdout, 'write').mockImplementation((s: string | Uint8Array) => { out += String(s); return true; });
-  const e = vi.spyOn(process.stderr, 'write').mockImplementation((s: string | Uint8Array) => { err += String(s); return true; });
-  try {
-    return { code: await main(argv), out, err };
-  } finally {
-    o.mockRestore();
-    e.mockRestore();
-  }
-}
 
 let dir = '';
 beforeAll(() => { dir = mkdtempSync(join(tmpdir(), 'placode-kf-')); });
