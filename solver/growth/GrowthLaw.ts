@@ -11,8 +11,6 @@ export interface GrowthLaw {
   /** linear scale factor ρ(t) where the law has one (uniform growth), else undefined */
   scaleAt?(t: number): number;
   advance(mesh: Mesh, t0: number, t1: number, out: Float64Array): void;
-  /** the largest speed of any vertex between t0 and t1 (for choosing geometry updates) */
-  maxSpeed(mesh: Mesh, t0: number, t1: number): number;
 }
 
 export type TimeCourse = 'exponential' | 'linear' | 'logistic';

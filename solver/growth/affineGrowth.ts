@@ -18,26 +18,15 @@ export function affineGrowth(reference: Float64Array, rates: [number, number, nu
     scaleAt: uniform ? (t) => scaleFactor(course, rates[0], t, capacity) : undefined,
     advance(_mesh: Mesh, _t0: number, t1: number, out: Float64Array) {
       const s = scales(t1);
+      // the linear map Σ_k ρ_k a_k a_kᵀ, once
+      const L = new Float64Array(9);
+      for (let k = 0; k < 3; k++) for (let r = 0; r < 3; r++) for (let c = 0; c < 3; c++) L[3 * r + c] += s[k] * A[k][r] * A[k][c];
       for (let i = 0; i < reference.length; i += 3) {
-        const d = [reference[i] - centre[0], reference[i + 1] - centre[1], reference[i + 2] - centre[2]];
-        out[i] = centre[0]; out[i + 1] = centre[1]; out[i + 2] = centre[2];
-        for (let k = 0; k < 3; k++) {
-          const a = A[k];
-          const f = s[k] * (a[0] * d[0] + a[1] * d[1] + a[2] * d[2]);
-          out[i] += f * a[0]; out[i + 1] += f * a[1]; out[i + 2] += f * a[2];
-        }
+        const dx = reference[i] - centre[0], dy = reference[i + 1] - centre[1], dz = reference[i + 2] - centre[2];
+        out[i] = centre[0] + L[0] * dx + L[1] * dy + L[2] * dz;
+        out[i + 1] = centre[1] + L[3] * dx + L[4] * dy + L[5] * dz;
+        out[i + 2] = centre[2] + L[6] * dx + L[7] * dy + L[8] * dz;
       }
-    },
-    maxSpeed(_mesh: Mesh, t0: number, t1: number) {
-      const a = scales(t0), b = scales(t1);
-      let far = 0;
-      for (let i = 0; i < reference.length; i += 3) {
-        const d = [reference[i] - centre[0], reference[i + 1] - centre[1], reference[i + 2] - centre[2]];
-        let s2 = 0;
-        for (let k = 0; k < 3; k++) s2 += ((b[k] - a[k]) * (A[k][0] * d[0] + A[k][1] * d[1] + A[k][2] * d[2])) ** 2;
-        far = Math.max(far, Math.sqrt(s2));
-      }
-      return far / Math.max(t1 - t0, 1e-300);
     },
   };
 }

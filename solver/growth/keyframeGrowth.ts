@@ -33,18 +33,10 @@ export function keyframeGrowth(times: readonly number[], stages: readonly Float6
     const h00 = 2 * s ** 3 - 3 * s ** 2 + 1, h10 = s ** 3 - 2 * s ** 2 + s, h01 = -2 * s ** 3 + 3 * s ** 2, h11 = s ** 3 - s ** 2;
     for (let i = 0; i < out.length; i++) out[i] = h00 * p0[i] + h10 * h * tangent(j, i) + h01 * p1[i] + h11 * h * tangent(j + 1, i);
   };
-  const probe = new Float64Array(stages[0].length);
   return {
     description,
     advance(_mesh: Mesh, _t0: number, t1: number, out: Float64Array) {
       at(t1, out);
-    },
-    maxSpeed(mesh: Mesh, t0: number, t1: number) {
-      at(t1, probe);
-      const p = mesh.positions;
-      let m = 0;
-      for (let i = 0; i < p.length; i += 3) m = Math.max(m, Math.hypot(probe[i] - p[i], probe[i + 1] - p[i + 1], probe[i + 2] - p[i + 2]));
-      return m / Math.max(t1 - t0, 1e-300);
     },
   };
 }

@@ -45,13 +45,5 @@ export function normalGrowth(speed: VertexSpeed | undefined, description: string
       const h = t1 - t0;
       for (let i = 0; i < p.length; i++) out[i] = p[i] + h * scratch[i];
     },
-    maxSpeed(mesh: Mesh, t0: number) {
-      const p = mesh.positions;
-      scratch = scratch && scratch.length === p.length ? scratch : new Float64Array(p.length);
-      velocity(mesh, t0, scratch);
-      let m = 0;
-      for (let i = 0; i < p.length; i += 3) m = Math.max(m, Math.hypot(scratch[i], scratch[i + 1], scratch[i + 2]));
-      return m;
-    },
   };
 }
