@@ -35,7 +35,7 @@ function log(quiet: boolean | undefined, text: string) {
 /** Run the command line; returns the exit code. Never throws. */
 export async function main(argv: string[]): Promise<number> {
   const program = new Command('placode')
-    .description('Turing-type reaction–diffusion on tissue-shaped surfaces: meshes, surface finite elements, eigenmodes')
+    .description('Turing-type reaction–diffusion on tissue-shaped surfaces, fixed or growing: meshes, surface finite elements, eigenmodes, stability, runs')
     .version(VERSION)
     .exitOverride()
     .configureOutput({ writeErr: (s) => process.stderr.write(s) })
@@ -155,7 +155,7 @@ export async function main(argv: string[]): Promise<number> {
 
   program
     .command('demo')
-    .description('the built-in demonstration: a limb-bud paddle, its statistics and its first eigenmodes')
+    .description('the built-in demonstration: a limb-bud paddle, its first eigenmodes, then a pattern forming while it grows')
     .option('--out-dir <dir>', 'where to write the outputs', 'placode-demo')
     .action(async (o: { outDir: string }) => {
       await runDemo(o.outDir);
