@@ -14,6 +14,7 @@ import { VERSION } from './version.ts';
 import { MODELS } from '../kinetics/models/index.ts';
 import { runScenarioFile, resumeRun, checkScenario } from './runScenario.ts';
 import { runStability } from './stability.ts';
+import { exportRun, type ExportFormat } from './exportRun.ts';
 
 const collect = (value: string, previous: string[] = []) => previous.concat([value]);
 
@@ -194,6 +195,24 @@ export async function main(argv: string[]): Promise<number> {
         json: o.json, paint: o.paint, map: o.map, mapOut: o.mapOut, force: o.force,
         maxModes: parseCount(o.maxModes, '--max-modes', 2), state: parseCount(o.state, '--state'),
       }, (s) => process.stdout.write(s));
+    });
+
+  program
+    .command('export')
+    .argument('<input>', 'a run directory or one frame file (.ply)')
+    .description('export frames as PLY, binary glTF, OBJ with vertex colours, or CSV')
+    .addOption(new Option('--format <f>', 'output format').choices(['ply', 'glb', 'obj', 'csv']).default('ply'))
+    .requiredOption('-o, --out <path>', 'output file (one frame) or directory (with --all)')
+    .option('--frame <n>', 'frame index of a run (default: the final state)')
+    .option('--all', 'every frame of the run (and final), into the --out directory')
+    .option('--species <name>', 'species painted as colours (default: the last one)')
+    .option('--colormap <name>', 'colormap (viridis magma inferno plasma cividis diverging greys)', 'viridis')
+    .option('--range <r>', 'colour range: frame, run, or min:max', 'frame')
+    .option('--ascii', 'ASCII PLY instead of binary')
+    .option('--force', 'overwrite existing files')
+    .action(async (input: string, o: { format: ExportFormat; out: string; frame?: string; all?: boolean; species?: string; colormap: string; range: string; ascii?: boolean; force?: boolean }) => {
+      const files = await exportRun(input, { ...o, frame: parseCount(o.frame, '--frame') });
+      for (const f of files) process.stdout.write(`wrote ${f}\n`);
     });
 
   program

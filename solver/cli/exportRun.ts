@@ -1,0 +1,123 @@
+import { existsSync, mkdirSync, readFileSync, statSync } from 'node:fs';
+import { basename, join } from 'node:path';
+import { loadMeshFile, writeFileAtomic } from '../io/meshFiles.ts';
+import { RUN_FILES, speciesFromProperties, speciesProperty } from '../io/runFiles.ts';
+import { colorizeField, COLORMAP_NAMES, type ColormapName } from '../io/colormap.ts';
+import { writePly } from '../io/writePly.ts';
+import { writeObj } from '../io/writeObj.ts';
+import { writeGlb } from '../io/writeGlb.ts';
+import type { Mesh } from '../mesh/Mesh.ts';
+import { UsageError } from './UsageError.ts';
+
+export type ExportFormat = 'ply' | 'glb' | 'obj' | 'csv';
+
+export interface ExportOptions {
+  format: ExportFormat;
+  out: string;
+  frame?: number;
+  all?: boolean;
+  species?: string;
+  colormap?: string;
+  /** 'frame' (each file its own range), 'run' (one range over all frames of the run) or 'min:max' */
+  range?: string;
+  ascii?: boolean;
+  force?: boolean;
+}
+
+interface Snapshot {
+  name: string;
+  mesh: Mesh;
+  fields: Record<string, Float64Array>;
+}
+
+/** The frames of a run directory (or a single frame file), as files in order. */
+function framesOf(input: string): { files: string[]; isRun: boolean } {
+  if (!existsSync(input)) throw new UsageError(`${input}: no such run directory or frame file`);
+  if (statSync(input).isDirectory()) {
+    const record = join(input, RUN_FILES.record);
+    if (!existsSync(record)) throw new UsageError(`${input} is not a run directory (no ${RUN_FILES.record})`);
+    const frames: { file: string }[] = JSON.parse(readFileSync(record, 'utf8')).frames ?? [];
+    const files = frames.map((f) => join(input, f.file));
+    if (existsSync(join(input, RUN_FILES.final))) files.push(join(input, RUN_FILES.final));
+    return { files, isRun: true };
+  }
+  return { files: [input], isRun: false };
+}
+
+function load(file: string): Snapshot {
+  const imported = loadMeshFile(file);
+  const fields = speciesFromProperties(imported.vertexData);
+  if (!Object.keys(fields).length) throw new UsageError(`${file} holds no species (float vertex properties named species_<name>): is it a frame of a run?`);
+  return { name: basename(file).replace(/\.ply$/, ''), mesh: imported.mesh, fields };
+}
+
+/**
+ * `placode export`: frames of a run (or one frame file) as PLY (binary or
+ * ASCII; colours and every species), binary glTF (COLOR_0 in linear colour,
+ * normals, species as `_NAME` attributes), OBJ with per-vertex colours, or CSV
+ * of x, y, z and the species. Colour range per file, over the whole run, or
+ * fixed. Never overwrites without `force`. Returns the files written.
+ */
+export async function exportRun(input: string, o: ExportOptions): Promise<string[]> {
+  const { files, isRun } = framesOf(input);
+  if (!files.length) throw new UsageError(`${input} has no frames to export`);
+  if (o.all && o.frame !== undefined) throw new UsageError('give --frame N or --all, not both');
+  let chosen: string[];
+  if (o.all) chosen = files;
+  else if (o.frame !== undefined) {
+    if (!isRun) throw new UsageError('--frame picks a frame of a run directory; the input is a single file');
+    const frameFiles = files.filter((f) => !f.endsWith(RUN_FILES.final));
+    if (o.frame >= frameFiles.length) throw new UsageError(`--frame ${o.frame}: the run has frames 0–${frameFiles.length - 1}`);
+    chosen = [frameFiles[o.frame]];
+  } else chosen = [files[files.length - 1]];
+  const colormap = (o.colormap ?? 'viridis') as ColormapName;
+  if (!COLORMAP_NAMES.includes(colormap)) throw new UsageError(`unknown colormap "${colormap}"; choose one of ${COLORMAP_NAMES.join(', ')}`);
+  const snapshots = chosen.map(load);
+  const speciesNames = Object.keys(snapshots[0].fields);
+  const species = o.species ?? speciesNames[speciesNames.length - 1];
+  if (!speciesNames.includes(species)) throw new UsageError(`--species ${species}: the frames hold ${speciesNames.join(', ')}`);
+  let range: [number, number] | undefined;
+  const rangeText = o.range ?? 'frame';
+  if (rangeText === 'run') {
+    let lo = Infinity, hi = -Infinity;
+    for (const f of isRun ? files : chosen) {
+      const v = (f === chosen[0] ? snapshots[0] : load(f)).fields[species];
+      for (const x of v) { lo = Math.min(lo, x); hi = Math.max(hi, x); }
+    }
+    range = [lo, hi];
+  } else if (rangeText !== 'frame') {
+    const m = /^(-?[0-9.eE+-]+):(-?[0-9.eE+-]+)$/.exec(rangeText);
+    if (!m || !(Number(m[2]) > Number(m[1]))) throw new UsageError(`--range "${rangeText}" should be frame, run, or min:max with max > min`);
+    range = [Number(m[1]), Number(m[2])];
+  }
+  const many = snapshots.length > 1;
+  if (many) mkdirSync(o.out, { recursive: true });
+  const written: string[] = [];
+  for (const s of snapshots) {
+    const colors = colorizeField(s.fields[species], colormap, range);
+    const target = many ? join(o.out, `${s.name}.${o.format}`) : o.out;
+    let bytes: Uint8Array | string;
+    switch (o.format) {
+      case 'ply':
+        bytes = writePly(s.mesh, { encoding: o.ascii ? 'ascii' : 'binary', colors, properties: Object.fromEntries(Object.entries(s.fields).map(([k, v]) => [speciesProperty(k), v])), comments: [`placode export of ${s.name}, colours: ${species} on ${colormap}`] });
+        break;
+      case 'obj':
+        bytes = writeObj(s.mesh, { colors, comment: `placode export of ${s.name}, colours: ${species} on ${colormap}` });
+        break;
+      case 'glb':
+        bytes = await writeGlb(s.mesh, { colors, properties: s.fields, name: s.name });
+        break;
+      case 'csv': {
+        const names = Object.keys(s.fields);
+        const rows = [['x', 'y', 'z', ...names].join(',')];
+        const p = s.mesh.positions;
+        for (let i = 0; i < p.length / 3; i++) rows.push([p[3 * i], p[3 * i + 1], p[3 * i + 2], ...names.map((k) => s.fields[k][i])].join(','));
+        bytes = rows.join('\n') + '\n';
+        break;
+      }
+    }
+    writeFileAtomic(target, bytes, o.force);
+    written.push(target);
+  }
+  return written;
+}

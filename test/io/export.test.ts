@@ -1,0 +1,116 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { NodeIO } from '@gltf-transform/core';
+import validator from 'gltf-validator';
+import { PLYLoader } from 'three/examples/jsm/loaders/PLYLoader.js';
+import { OBJLoader } from 'three/examples/jsm/loaders/OBJLoader.js';
+import { runCli as run } from '../fixtures/cli.ts';
+import { loadMeshFile } from '../../solver/io/meshFiles.ts';
+import { speciesFromProperties } from '../../solver/io/runFiles.ts';
+import { colorizeField, colormapTable } from '../../solver/io/colormap.ts';
+import { linearToSrgb, srgbToLinear } from '../../solver/io/writeGlb.ts';
+
+let dir = '';
+let runDir = '';
+beforeAll(async () => {
+  dir = mkdtempSync(join(tmpdir(), 'placode-export-'));
+  const file = join(dir, 's.yaml');
+  writeFileSync(file, `
+seed: 2
+mesh: {shape: sphere, params: {radius: 0.25}, vertices: 800}
+kinetics: {model: gray-scott, parameters: {F: 0.03, k: 0.062}}
+initial: {spots: {count: 3, radius: 0.06, values: {u: 0.5, v: 0.25}}}
+time: {scheme: explicit, end: 300}
+output: {every: 100}
+analysis: {modes: 0}
+`);
+  runDir = join(dir, 'run');
+  const r = await run('run', file, '--out', runDir, '--progress', 'none');
+  if (r.code !== 0) throw new Error(r.err);
+});
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+/** A colour component of a three.js attribute as a float (uchar attributes come normalised). */
+const component = (attr: { array: ArrayLike<number>; normalized: boolean }, i: number) => (attr.normalized ? attr.array[i] / 255 : attr.array[i]);
+
+const arrayBuffer = (b: Buffer) => b.buffer.slice(b.byteOffset, b.byteOffset + b.byteLength) as ArrayBuffer;
+
+describe('placode export', () => {
+  it('binary glTF passes the Khronos validator; COLOR_0 is linear and reads back as the PLY colours within 1/255', async () => {
+    const out = join(dir, 'final.glb');
+    const r = await run('export', runDir, '--format', 'glb', '-o', out, '--species', 'v');
+    expect(r.code, r.err).toBe(0);
+    const bytes = new Uint8Array(readFileSync(out));
+    const report = await validator.validateBytes(bytes);
+    expect(report.issues.numErrors).toBe(0);
+    expect(report.issues.numWarnings).toBe(0);
+    const doc = await new NodeIO().readBinary(bytes);
+    const prim = doc.getRoot().listMeshes()[0].listPrimitives()[0];
+    const frame = loadMeshFile(join(runDir, 'final.ply'));
+    const v = speciesFromProperties(frame.vertexData).v;
+    const expected = colorizeField(v, 'viridis');
+    const colour = prim.getAttribute('COLOR_0')!.getArray()!;
+    for (let i = 0; i < expected.length; i++) expect(Math.abs(linearToSrgb(colour[i]) - expected[i])).toBeLessThanOrEqual(1);
+    // the species travel as underscore-prefixed application attributes (glTF 2.0 §3.7.2.1)
+    const raw = prim.getAttribute('_V')!.getArray()!;
+    for (let i = 0; i < v.length; i++) expect(raw[i]).toBe(Math.fround(v[i]));
+    expect(prim.getAttribute('NORMAL')).not.toBeNull();
+  });
+
+  it('PLY and OBJ read back through three.js loaders with the same positions, triangles and colours', async () => {
+    const frame = loadMeshFile(join(runDir, 'final.ply'));
+    const colors = colorizeField(speciesFromProperties(frame.vertexData).v, 'magma');
+    for (const ascii of [false, true]) {
+      const out = join(dir, `final${ascii ? '-ascii' : ''}.ply`);
+      expect((await run('export', runDir, '-o', out, '--species', 'v', '--colormap', 'magma', ...(ascii ? ['--ascii'] : []))).code).toBe(0);
+      const g = new PLYLoader().parse(arrayBuffer(readFileSync(out)));
+      const pos = g.getAttribute('position').array, col = g.getAttribute('color');
+      for (let i = 0; i < frame.mesh.positions.length; i++) expect(pos[i]).toBe(Math.fround(frame.mesh.positions[i]));
+      expect(Array.from(g.getIndex()!.array)).toEqual(Array.from(frame.mesh.triangles));
+      // three.js colour management turns the file's sRGB bytes into linear values (kept as bytes)
+      for (let i = 0; i < colors.length; i++) expect(Math.abs(component(col, i) - srgbToLinear(colors[i]))).toBeLessThanOrEqual(0.51 / 255);
+    }
+    const obj = join(dir, 'final.obj');
+    expect((await run('export', runDir, '--format', 'obj', '-o', obj, '--species', 'v', '--colormap', 'magma')).code).toBe(0);
+    // three's OBJ loader expands faces: corner k of triangle t is vertex triangles[3t + k]
+    const group = new OBJLoader().parse(readFileSync(obj, 'utf8'));
+    const geo = (group.children[0] as unknown as { geometry: { getAttribute(n: string): { array: ArrayLike<number>; normalized: boolean } } }).geometry;
+    const pos = geo.getAttribute('position').array, col = geo.getAttribute('color');
+    const tri = frame.mesh.triangles;
+    for (let c = 0; c < tri.length; c++) {
+      for (let d = 0; d < 3; d++) {
+        expect(pos[3 * c + d]).toBeCloseTo(frame.mesh.positions[3 * tri[c] + d], 6);
+        expect(Math.abs(component(col, 3 * c + d) - srgbToLinear(colors[3 * tri[c] + d]))).toBeLessThanOrEqual(0.51 / 255);
+      }
+    }
+  });
+
+  it('CSV per vertex, every frame with one colour range over the run, and no overwriting without --force', async () => {
+    const csv = join(dir, 'final.csv');
+    expect((await run('export', runDir, '--format', 'csv', '-o', csv)).code).toBe(0);
+    const lines = readFileSync(csv, 'utf8').trim().split('\n');
+    expect(lines[0]).toBe('x,y,z,u,v');
+    expect(lines.length).toBe(1 + loadMeshFile(join(runDir, 'final.ply')).mesh.positions.length / 3);
+    const all = join(dir, 'all');
+    const r = await run('export', runDir, '--all', '--range', 'run', '-o', all);
+    expect(r.code, r.err).toBe(0);
+    expect(readdirSync(all).sort()).toEqual(['0000.ply', '0001.ply', '0002.ply', '0003.ply', 'final.ply']);
+    // one range over the run: the vertex with the run's lowest v, wherever it is, gets the map's first colour
+    let lowest = Infinity, where = '', at = -1;
+    for (const f of readdirSync(all)) {
+      const v = speciesFromProperties(loadMeshFile(join(all, f)).vertexData).v;
+      v.forEach((x, i) => { if (x < lowest) { lowest = x; where = f; at = i; } });
+    }
+    const g = new PLYLoader().parse(arrayBuffer(readFileSync(join(all, where))));
+    const first = colormapTable('viridis');
+    for (let d = 0; d < 3; d++) expect(Math.abs(component(g.getAttribute('color'), 3 * at + d) - srgbToLinear(first[d]))).toBeLessThanOrEqual(0.51 / 255);
+    const again = await run('export', runDir, '--format', 'csv', '-o', csv);
+    expect(again.code).toBe(1);
+    expect(again.err).toMatch(/already exists; pass --force/);
+    const bad = await run('export', runDir, '--frame', '9', '-o', join(dir, 'x.ply'));
+    expect(bad.code).toBe(2);
+    expect(bad.err).toMatch(/--frame 9: the run has frames 0–3/);
+  });
+});
