@@ -15,6 +15,8 @@ import { MODELS } from '../kinetics/models/index.ts';
 import { runScenarioFile, resumeRun, checkScenario } from './runScenario.ts';
 import { runStability } from './stability.ts';
 import { exportRun, type ExportFormat } from './exportRun.ts';
+import { runFigure } from './figure.ts';
+import { VIEW_PRESETS } from '../io/surfaceView.ts';
 
 const collect = (value: string, previous: string[] = []) => previous.concat([value]);
 
@@ -213,6 +215,30 @@ export async function main(argv: string[]): Promise<number> {
     .action(async (input: string, o: { format: ExportFormat; out: string; frame?: string; all?: boolean; species?: string; colormap: string; range: string; ascii?: boolean; force?: boolean }) => {
       const files = await exportRun(input, { ...o, frame: parseCount(o.frame, '--frame') });
       for (const f of files) process.stdout.write(`wrote ${f}\n`);
+    });
+
+  program
+    .command('figure')
+    .argument('<input>', 'a run directory or one frame file (.ply)')
+    .description('render the coloured surface as a PNG or SVG figure with a colour bar (no GPU)')
+    .requiredOption('-o, --out <file>', 'figure file, .png or .svg')
+    .option('--frame <n>', 'frame index of a run (default: the final state)')
+    .option('--sheet', 'every frame of the run in a grid, captioned with its time')
+    .option('--species <name>', 'species to paint (default: the last one)')
+    .option('--colormap <name>', 'colormap', 'viridis')
+    .option('--range <min:max>', 'colour range (default: over the frames shown)')
+    .option('--view <v>', `view preset (${Object.keys(VIEW_PRESETS).join(', ')}) or azimuth,elevation`, 'iso')
+    .option('--title <text>', 'title above the figure')
+    .option('--width <px>', 'width in pixels', '900')
+    .option('--height <px>', 'height in pixels', '700')
+    .option('--dpi <n>', 'resolution recorded in a PNG', '150')
+    .option('--force', 'overwrite an existing file')
+    .action((input: string, o: { out: string; frame?: string; sheet?: boolean; species?: string; colormap: string; range?: string; view: string; title?: string; width: string; height: string; dpi: string; force?: boolean }) => {
+      const file = runFigure(input, {
+        ...o, frame: parseCount(o.frame, '--frame'),
+        width: parseCount(o.width, '--width', 1)!, height: parseCount(o.height, '--height', 1)!, dpi: parseCount(o.dpi, '--dpi', 1)!,
+      });
+      process.stdout.write(`wrote ${file}\n`);
     });
 
   program

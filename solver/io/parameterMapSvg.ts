@@ -1,4 +1,5 @@
 import { colormapTable } from './colormap.ts';
+import { niceTicks } from './surfaceView.ts';
 import { axisValues, MAP_CLASS_LABELS, type MapAxis, type MapCell, type MapClass } from '../analysis/parameterMap.ts';
 
 const CLASS_FILL: Record<Exclude<MapClass, 'turing'>, string> = {
@@ -9,18 +10,6 @@ const CLASS_FILL: Record<Exclude<MapClass, 'turing'>, string> = {
 };
 
 const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;');
-
-/** A few round tick values covering [a, b]. */
-export function niceTicks(a: number, b: number, count = 5): number[] {
-  const lo = Math.min(a, b), hi = Math.max(a, b);
-  if (hi === lo) return [lo];
-  const raw = (hi - lo) / count;
-  const mag = Math.pow(10, Math.floor(Math.log10(raw)));
-  const step = [1, 2, 2.5, 5, 10].map((m) => m * mag).find((s) => s >= raw)!;
-  const out: number[] = [];
-  for (let v = Math.ceil(lo / step - 1e-9) * step; v <= hi + 1e-9 * step; v += step) out.push(Number(v.toPrecision(12)));
-  return out;
-}
 
 /**
  * The parameter-plane map as SVG: one cell per grid point, Turing-unstable
@@ -53,11 +42,11 @@ export function parameterMapSvg(cells: MapCell[], xAxis: MapAxis, yAxis: MapAxis
     parts.push(`<rect class="cell ${c.cls}" x="${(left + i * cw).toFixed(2)}" y="${(top + ph - (j + 1) * ch).toFixed(2)}" width="${(cw + 0.3).toFixed(2)}" height="${(ch + 0.3).toFixed(2)}" fill="${fill}"/>`);
   });
   parts.push(`<rect x="${left}" y="${top}" width="${pw}" height="${ph}" fill="none" stroke="black"/>`);
-  for (const t of niceTicks(xAxis.from, xAxis.to)) {
+  for (const t of niceTicks(Math.min(xAxis.from, xAxis.to), Math.max(xAxis.from, xAxis.to))) {
     const x = px(t);
     parts.push(`<line x1="${x.toFixed(2)}" y1="${top + ph}" x2="${x.toFixed(2)}" y2="${top + ph + 5}" stroke="black"/><text class="xtick" x="${x.toFixed(2)}" y="${top + ph + 19}" text-anchor="middle">${t}</text>`);
   }
-  for (const t of niceTicks(yAxis.from, yAxis.to)) {
+  for (const t of niceTicks(Math.min(yAxis.from, yAxis.to), Math.max(yAxis.from, yAxis.to))) {
     const y = py(t);
     parts.push(`<line x1="${left - 5}" y1="${y.toFixed(2)}" x2="${left}" y2="${y.toFixed(2)}" stroke="black"/><text class="ytick" x="${left - 8}" y="${(y + 4).toFixed(2)}" text-anchor="end">${t}</text>`);
   }
