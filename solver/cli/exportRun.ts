@@ -5,7 +5,7 @@ import { RUN_FILES, speciesFromProperties, speciesProperty } from '../io/runFile
 import { colorizeField, COLORMAP_NAMES, type ColormapName } from '../io/colormap.ts';
 import { writePly } from '../io/writePly.ts';
 import { writeObj } from '../io/writeObj.ts';
-import { writeGlb } from '../io/writeGlb.ts';
+import { writeGlb, writeAnimatedGlb } from '../io/writeGlb.ts';
 import type { Mesh } from '../mesh/Mesh.ts';
 import { UsageError } from './UsageError.ts';
 
@@ -21,6 +21,10 @@ export interface ExportOptions {
   /** 'frame' (each file its own range), 'run' (one range over all frames of the run) or 'min:max' */
   range?: string;
   ascii?: boolean;
+  /** glb: one file whose animation plays every frame of the run (growth and colours) */
+  animate?: boolean;
+  /** seconds of playback for the whole run (default 10) */
+  duration?: number;
   force?: boolean;
 }
 
@@ -89,6 +93,27 @@ export async function exportRun(input: string, o: ExportOptions): Promise<string
     const m = /^(-?[0-9.eE+-]+):(-?[0-9.eE+-]+)$/.exec(rangeText);
     if (!m || !(Number(m[2]) > Number(m[1]))) throw new UsageError(`--range "${rangeText}" should be frame, run, or min:max with max > min`);
     range = [Number(m[1]), Number(m[2])];
+  }
+  if (o.animate) {
+    if (o.format !== 'glb') throw new UsageError('--animate makes one animated .glb: use it with --format glb');
+    if (!isRun) throw new UsageError('--animate plays the frames of a run directory');
+    const all = files.filter((f) => !f.endsWith(RUN_FILES.final)).map(load);
+    if (all.length < 2) throw new UsageError(`${input} has ${all.length} frame: nothing to animate`);
+    const n = all[0].mesh.positions.length;
+    const same = all.filter((s) => s.mesh.positions.length === n);
+    if (same.length < all.length) throw new UsageError(`the surface was refined during the run (frames have ${[...new Set(all.map((s) => s.mesh.positions.length / 3))].join(', ')} vertices): one animation needs one mesh; export the frames with --all instead`);
+    const record = JSON.parse(readFileSync(join(input, RUN_FILES.record), 'utf8'));
+    const times: number[] = record.frames.map((f: { time: number }) => f.time);
+    const span = times[times.length - 1] - times[0] || 1;
+    const duration = o.duration ?? 10;
+    const bytes = await writeAnimatedGlb(
+      all.map((s) => ({ positions: s.mesh.positions, colors: colorizeField(s.fields[species], colormap, range) })),
+      all[0].mesh.triangles,
+      times.slice(0, all.length).map((t) => ((t - times[0]) / span) * duration),
+      basename(input),
+    );
+    writeFileAtomic(o.out, bytes, o.force);
+    return [o.out];
   }
   const many = snapshots.length > 1;
   if (many) mkdirSync(o.out, { recursive: true });

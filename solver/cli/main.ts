@@ -211,9 +211,13 @@ export async function main(argv: string[]): Promise<number> {
     .option('--colormap <name>', 'colormap (viridis magma inferno plasma cividis diverging greys)', 'viridis')
     .option('--range <r>', 'colour range: frame, run, or min:max', 'frame')
     .option('--ascii', 'ASCII PLY instead of binary')
+    .option('--animate', 'glb: one file whose animation plays every frame (growth and colours)')
+    .option('--duration <s>', 'seconds of playback for --animate', '10')
     .option('--force', 'overwrite existing files')
-    .action(async (input: string, o: { format: ExportFormat; out: string; frame?: string; all?: boolean; species?: string; colormap: string; range: string; ascii?: boolean; force?: boolean }) => {
-      const files = await exportRun(input, { ...o, frame: parseCount(o.frame, '--frame') });
+    .action(async (input: string, o: { format: ExportFormat; out: string; frame?: string; all?: boolean; species?: string; colormap: string; range: string; ascii?: boolean; animate?: boolean; duration: string; force?: boolean }) => {
+      const duration = Number(o.duration);
+      if (!(duration > 0)) throw new UsageError(`--duration must be a positive number of seconds, got "${o.duration}"`);
+      const files = await exportRun(input, { ...o, frame: parseCount(o.frame, '--frame'), duration });
       for (const f of files) process.stdout.write(`wrote ${f}\n`);
     });
 

@@ -50,3 +50,48 @@ export async function writeGlb(mesh: Mesh, options: { colors?: Uint8Array; prope
   doc.getRoot().getAsset().generator = 'placode';
   return new NodeIO().writeBinary(doc);
 }
+
+/**
+ * One .glb whose animation plays a sequence of frames of one surface (same
+ * vertices and triangles, as a growing run's frames between refinements): the
+ * first frame is the mesh, every later frame a morph target holding its
+ * position and linear-colour differences, and a LINEAR animation of the morph
+ * weights visits frame k at time `times[k]` (seconds of playback).
+ */
+export async function writeAnimatedGlb(frames: { positions: Float64Array; colors: Uint8Array }[], triangles: Uint32Array, times: number[], name = 'surface'): Promise<Uint8Array> {
+  if (frames.length < 2) throw new Error('writeAnimatedGlb: give at least two frames');
+  const n = frames[0].positions.length / 3;
+  for (const f of frames) if (f.positions.length !== 3 * n) throw new Error('writeAnimatedGlb: every frame must have the same vertices (the surface was refined in between)');
+  const doc = new Document();
+  const buffer = doc.createBuffer();
+  const accessor = (array: Float32Array | Uint32Array, type: 'VEC3' | 'SCALAR') => doc.createAccessor().setArray(array).setType(type).setBuffer(buffer);
+  const linear = (c: Uint8Array) => Float32Array.from(c, (b) => srgbToLinear(b));
+  const basePos = Float32Array.from(frames[0].positions), baseCol = linear(frames[0].colors);
+  const prim = doc.createPrimitive()
+    .setAttribute('POSITION', accessor(basePos, 'VEC3'))
+    .setAttribute('NORMAL', accessor(Float32Array.from(vertexNormals({ positions: frames[0].positions, triangles })), 'VEC3'))
+    .setAttribute('COLOR_0', accessor(baseCol, 'VEC3'))
+    .setIndices(accessor(Uint32Array.from(triangles), 'SCALAR'))
+    .setMaterial(doc.createMaterial('surface').setRoughnessFactor(0.8).setMetallicFactor(0));
+  for (let k = 1; k < frames.length; k++) {
+    const dp = Float32Array.from(frames[k].positions, (x, i) => Math.fround(x) - basePos[i]);
+    const col = linear(frames[k].colors);
+    const dc = Float32Array.from(col, (x, i) => x - baseCol[i]);
+    const target = doc.createPrimitiveTarget(`frame ${k}`).setAttribute('POSITION', accessor(dp, 'VEC3')).setAttribute('COLOR_0', accessor(dc, 'VEC3'));
+    prim.addTarget(target);
+  }
+  const m = frames.length - 1;
+  const mesh = doc.createMesh(name).addPrimitive(prim).setWeights(new Array(m).fill(0));
+  const node = doc.createNode(name).setMesh(mesh);
+  doc.createScene('scene').addChild(node);
+  const weights = new Float32Array(frames.length * m);
+  for (let k = 1; k < frames.length; k++) weights[k * m + (k - 1)] = 1;
+  const sampler = doc.createAnimationSampler()
+    .setInput(doc.createAccessor().setArray(Float32Array.from(times)).setType('SCALAR').setBuffer(buffer))
+    .setOutput(doc.createAccessor().setArray(weights).setType('SCALAR').setBuffer(buffer))
+    .setInterpolation('LINEAR');
+  const channel = doc.createAnimationChannel().setTargetNode(node).setTargetPath('weights').setSampler(sampler);
+  doc.createAnimation('growth').addSampler(sampler).addChannel(channel);
+  doc.getRoot().getAsset().generator = 'placode';
+  return new NodeIO().writeBinary(doc);
+}

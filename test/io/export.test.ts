@@ -114,3 +114,35 @@ describe('placode export', () => {
     expect(bad.err).toMatch(/--frame 9: the run has frames 0–3/);
   });
 });
+
+describe('animated glTF of a growing run', () => {
+  it('one .glb plays the growth and the colours: a morph target per frame, weights animated over the frame times', async () => {
+    const file = join(dir, 'grow.yaml');
+    writeFileSync(file, `
+mesh: {shape: sphere, vertices: 300}
+kinetics: {model: schnakenberg, parameters: {gamma: 30}}
+initial: {noise: 0.05}
+time: {scheme: imex, step: 0.005, end: 3}
+output: {every: 1}
+growth: {law: uniform, rate: 0.2}
+analysis: {modes: 0}
+`);
+    const growDir = join(dir, 'grow');
+    expect((await run('run', file, '--out', growDir, '--progress', 'none')).code).toBe(0);
+    const out = join(dir, 'grow.glb');
+    const r = await run('export', growDir, '--format', 'glb', '--animate', '--range', 'run', '--duration', '6', '-o', out);
+    expect(r.code, r.err).toBe(0);
+    const bytes = new Uint8Array(readFileSync(out));
+    const report = await validator.validateBytes(bytes);
+    expect(report.issues.numErrors).toBe(0);
+    const doc = await new NodeIO().readBinary(bytes);
+    const prim = doc.getRoot().listMeshes()[0].listPrimitives()[0];
+    const targets = prim.listTargets();
+    expect(targets.length).toBe(3); // frames at t = 0, 1, 2, 3
+    const sampler = doc.getRoot().listAnimations()[0].listSamplers()[0];
+    expect(Array.from(sampler.getInput()!.getArray()!)).toEqual([0, 2, 4, 6]);
+    // frame 3 = base + target 3: the sphere grown by e^{0.2·3}
+    const base = prim.getAttribute('POSITION')!.getArray()!, d3 = targets[2].getAttribute('POSITION')!.getArray()!;
+    for (let i = 0; i < base.length; i += 3) expect(Math.hypot(base[i] + d3[i], base[i + 1] + d3[i + 1], base[i + 2] + d3[i + 2]) / Math.hypot(base[i], base[i + 1], base[i + 2])).toBeCloseTo(Math.exp(0.6), 5);
+  });
+});
