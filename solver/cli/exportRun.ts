@@ -1,15 +1,14 @@
 import { existsSync, mkdirSync, readFileSync, statSync } from 'node:fs';
 import { basename, join } from 'node:path';
 import { loadMeshFile, writeFileAtomic } from '../io/meshFiles.ts';
-import { RUN_FILES, speciesFromProperties, speciesProperty } from '../io/runFiles.ts';
+import { RUN_FILES, speciesFromProperties } from '../io/runFiles.ts';
 import { colorizeField, COLORMAP_NAMES, type ColormapName } from '../io/colormap.ts';
-import { writePly } from '../io/writePly.ts';
-import { writeObj } from '../io/writeObj.ts';
-import { writeGlb, writeAnimatedGlb } from '../io/writeGlb.ts';
+import { writeAnimatedGlb } from '../io/writeGlb.ts';
+import { encodeSnapshot, type SnapshotFormat } from '../io/encodeSnapshot.ts';
 import type { Mesh } from '../mesh/Mesh.ts';
 import { UsageError } from './UsageError.ts';
 
-export type ExportFormat = 'ply' | 'glb' | 'obj' | 'csv';
+export type ExportFormat = SnapshotFormat;
 
 export interface ExportOptions {
   format: ExportFormat;
@@ -121,26 +120,7 @@ export async function exportRun(input: string, o: ExportOptions): Promise<string
   for (const s of snapshots) {
     const colors = colorizeField(s.fields[species], colormap, range);
     const target = many ? join(o.out, `${s.name}.${o.format}`) : o.out;
-    let bytes: Uint8Array | string;
-    switch (o.format) {
-      case 'ply':
-        bytes = writePly(s.mesh, { encoding: o.ascii ? 'ascii' : 'binary', colors, properties: Object.fromEntries(Object.entries(s.fields).map(([k, v]) => [speciesProperty(k), v])), comments: [`placode export of ${s.name}, colours: ${species} on ${colormap}`] });
-        break;
-      case 'obj':
-        bytes = writeObj(s.mesh, { colors, comment: `placode export of ${s.name}, colours: ${species} on ${colormap}` });
-        break;
-      case 'glb':
-        bytes = await writeGlb(s.mesh, { colors, properties: s.fields, name: s.name });
-        break;
-      case 'csv': {
-        const names = Object.keys(s.fields);
-        const rows = [['x', 'y', 'z', ...names].join(',')];
-        const p = s.mesh.positions;
-        for (let i = 0; i < p.length / 3; i++) rows.push([p[3 * i], p[3 * i + 1], p[3 * i + 2], ...names.map((k) => s.fields[k][i])].join(','));
-        bytes = rows.join('\n') + '\n';
-        break;
-      }
-    }
+    const bytes = await encodeSnapshot(o.format, s.mesh, s.fields, colors, `placode export of ${s.name}, colours: ${species} on ${colormap}`, o.ascii);
     writeFileAtomic(target, bytes, o.force);
     written.push(target);
   }

@@ -14,6 +14,8 @@ import { turingAnalysis } from '../analysis/dispersion.ts';
 import { measurePattern } from '../analysis/measurePattern.ts';
 import { patchEvents } from '../analysis/patchEvents.ts';
 import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
+import { encodeSnapshot } from '../io/encodeSnapshot.ts';
+import { colorizeField } from '../io/colormap.ts';
 import { GrowthDriver, GrowthDegenerationError } from '../growth/GrowthDriver.ts';
 import { transferToRefinement } from '../growth/transferToRefinement.ts';
 import { refineMidpoint } from '../mesh/refineMidpoint.ts';
@@ -307,6 +309,18 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     saveState(state, atStep);
     outputSeconds += (performance.now() - tw) / 1000;
   };
+  /** the scenario's extra formats (glb, obj, csv) beside a frame or the final PLY */
+  const writeFormats = async (state: Float64Array, atStep: number, name: string) => {
+    if (!r.output.formats.length || (name !== 'final' && !r.output.frames)) return;
+    const tw = performance.now();
+    const fields = Object.fromEntries(r.species.map((s, i) => [s, speciesField(state, nS, i)]));
+    const colors = colorizeField(fields[r.output.colour], r.output.colormap, r.output.range === 'frame' ? undefined : r.output.range);
+    for (const format of r.output.formats) {
+      const bytes = await encodeSnapshot(format, stepper.surface, fields, colors, comments(atStep).join('; '));
+      writeFileAtomic(name === 'final' ? join(out, `final.${format}`) : join(out, RUN_FILES.frames, `${name}.${format}`), bytes, true);
+    }
+    outputSeconds += (performance.now() - tw) / 1000;
+  };
   const finish = (reason: StopReason, atStep: number, message: string, state: Float64Array): RunOutcome => {
     const tw = performance.now();
     if (reason !== 'interrupted') writeFileAtomic(join(out, RUN_FILES.final), encodeFrame(stepper.surface, r.species, state, style, comments(atStep)), true);
@@ -381,7 +395,10 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   const progress = makeProgress(options, log, step * dt, lastStep * dt);
   let steppingSeconds = 0;
   try {
-    if (!saved) emit(stepper.state, 0, true);
+    if (!saved) {
+      emit(stepper.state, 0, true);
+      await writeFormats(stepper.state, 0, frameName(0).replace('.ply', ''));
+    }
     writeRecord();
     const startStep = step;
     const started = performance.now();
@@ -425,12 +442,14 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
           if (stopped) return stopped;
         }
         emit(stepper.state, step, true);
+        await writeFormats(stepper.state, step, frameName(nextFrame - 1).replace('.ply', ''));
         if (reference && r.steadyState !== undefined) {
           const change = relativeChange(stepper.state, reference, (step - referenceStep) * dt);
           reference.set(stepper.state);
           referenceStep = step;
           if (change < r.steadyState) {
             record.analysis.timeToSteadyState = step * dt;
+            await writeFormats(stepper.state, step, 'final');
             return finish('steady-state', step, `steady state at t=${(step * dt).toPrecision(6)}: relative change ${change.toExponential(2)} per unit time < ${r.steadyState}. Outputs in ${out}`, stepper.state);
           }
         }
@@ -440,6 +459,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
         return finish('interrupted', step, `interrupted at t=${(step * dt).toPrecision(6)} (step ${step} of ${lastStep}); continue with: placode run --resume ${out}`, stepper.state);
       }
     }
+    await writeFormats(stepper.state, step, 'final');
     return finish('end', step, `finished at t=${(step * dt).toPrecision(6)} after ${step} steps. Outputs in ${out}`, stepper.state);
   } finally {
     process.off('SIGINT', onSignal);

@@ -136,6 +136,8 @@ export interface OutputSpec {
   /** fixed colour range, or "frame" to stretch each frame */
   range?: [number, number] | 'frame';
   frames?: boolean;
+  /** formats written for every frame and the final state besides PLY: glb, obj, csv */
+  formats?: ('ply' | 'glb' | 'obj' | 'csv')[];
 }
 
 const fieldValue = {
@@ -285,6 +287,7 @@ export const SCENARIO_SCHEMA = {
         colormap: { type: 'string' },
         range: { description: '"frame" or [min, max]', oneOf: [{ const: 'frame' }, { type: 'array', items: { type: 'number' }, minItems: 2, maxItems: 2 }] },
         frames: { type: 'boolean' },
+        formats: { type: 'array', uniqueItems: true, items: { enum: ['ply', 'glb', 'obj', 'csv'] } },
       },
     },
   },

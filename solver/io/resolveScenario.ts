@@ -59,6 +59,8 @@ export interface GrowthPlan {
 }
 
 export interface OutputPlan {
+  /** formats written besides PLY for every frame and the final state */
+  formats: ('glb' | 'obj' | 'csv')[];
   every: number;
   everySteps: number;
   colour: string;
@@ -434,7 +436,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   const every = sc.output?.every ?? end / 20;
   const everySteps = Math.max(1, Math.round(every / step));
   if (Math.abs(everySteps * step - every) > 1e-9 * every) warnings.push(`output.every ${every} is not a whole number of steps of ${step}; frames come every ${everySteps} steps (${everySteps * step})`);
-  const output: OutputPlan = { every: everySteps * step, everySteps, colour: colour!, colormap, range, frames: sc.output?.frames ?? true };
+  const output: OutputPlan = { formats: (sc.output?.formats ?? []).filter((f): f is 'glb' | 'obj' | 'csv' => f !== 'ply'), every: everySteps * step, everySteps, colour: colour!, colormap, range, frames: sc.output?.frames ?? true };
   const analysis: AnalysisPlan = {
     species: measured!,
     threshold: sc.analysis?.threshold ?? 'mid-range',

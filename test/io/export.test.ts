@@ -146,3 +146,23 @@ analysis: {modes: 0}
     for (let i = 0; i < base.length; i += 3) expect(Math.hypot(base[i] + d3[i], base[i + 1] + d3[i + 1], base[i + 2] + d3[i + 2]) / Math.hypot(base[i], base[i + 1], base[i + 2])).toBeCloseTo(Math.exp(0.6), 5);
   });
 });
+
+describe('formats written by the run command', () => {
+  it('output.formats adds glTF, OBJ or CSV beside every frame and the final state', async () => {
+    const file = join(dir, 'formats.yaml');
+    writeFileSync(file, `
+mesh: {shape: sphere, vertices: 300}
+kinetics: {model: schnakenberg, parameters: {gamma: 30}}
+initial: {noise: 0.05}
+time: {scheme: imex, step: 0.005, end: 1}
+output: {every: 0.5, formats: [glb, csv]}
+analysis: {modes: 0}
+`);
+    const out = join(dir, 'formats');
+    const r = await run('run', file, '--out', out, '--progress', 'none');
+    expect(r.code, r.err).toBe(0);
+    expect(readdirSync(join(out, 'frames')).sort()).toEqual(['0000.csv', '0000.glb', '0000.ply', '0001.csv', '0001.glb', '0001.ply', '0002.csv', '0002.glb', '0002.ply']);
+    for (const f of ['frames/0001.glb', 'final.glb']) expect((await validator.validateBytes(new Uint8Array(readFileSync(join(out, f))))).issues.numErrors).toBe(0);
+    expect(readFileSync(join(out, 'final.csv'), 'utf8').split('\n')[0]).toBe('x,y,z,u,v');
+  });
+});
