@@ -67,9 +67,17 @@ export function runFigure(input: string, o: FigureOptions): string {
     view = { azimuth: Number(m[1]), elevation: Number(m[2]) };
   }
   let range: [number, number] | undefined;
-  if (o.range !== undefined) {
+  if (o.range === 'run') {
+    if (!isRun) throw new UsageError('--range run takes the range over every frame of a run directory');
+    let lo = Infinity, hi = -Infinity;
+    const record = JSON.parse(readFileSync(join(input, RUN_FILES.record), 'utf8'));
+    for (const f of record.frames as { file: string }[]) {
+      for (const x of speciesFromProperties(loadMeshFile(join(input, f.file)).vertexData)[species!] ?? []) { lo = Math.min(lo, x); hi = Math.max(hi, x); }
+    }
+    range = hi > lo ? [lo, hi] : undefined;
+  } else if (o.range !== undefined) {
     const m = /^(-?[0-9.eE+-]+):(-?[0-9.eE+-]+)$/.exec(o.range);
-    if (!m || !(Number(m[2]) > Number(m[1]))) throw new UsageError(`--range "${o.range}" should be min:max with max > min`);
+    if (!m || !(Number(m[2]) > Number(m[1]))) throw new UsageError(`--range "${o.range}" should be min:max with max > min, or run`);
     range = [Number(m[1]), Number(m[2])];
   }
   if (!(o.width >= 100 && o.height >= 100 && o.width <= 8000 && o.height <= 8000)) throw new UsageError('--width and --height must be from 100 to 8000 pixels');

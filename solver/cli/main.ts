@@ -230,7 +230,7 @@ export async function main(argv: string[]): Promise<number> {
     .option('--sheet', 'every frame of the run in a grid, captioned with its time')
     .option('--species <name>', 'species to paint (default: the last one)')
     .option('--colormap <name>', 'colormap', 'viridis')
-    .option('--range <min:max>', 'colour range (default: over the frames shown)')
+    .option('--range <r>', 'colour range: min:max, or run (over every frame of the run); default: over the frames shown')
     .option('--view <v>', `view preset (${Object.keys(VIEW_PRESETS).join(', ')}) or azimuth,elevation`, 'iso')
     .option('--title <text>', 'title above the figure')
     .option('--width <px>', 'width in pixels', '900')

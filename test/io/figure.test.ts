@@ -72,7 +72,8 @@ describe('placode figure', () => {
   it('refuses a bad view, a bad range and an unknown output type with clear messages', async () => {
     const cases: [string[], RegExp][] = [
       [['--view', 'sideways'], /--view "sideways": a preset \(front, back, left, right, top, bottom, iso\) or azimuth,elevation/],
-      [['--range', '2:1'], /--range "2:1" should be min:max with max > min/],
+      [['--range', '2:1'], /--range "2:1" should be min:max with max > min, or run/],
+      [['--range', 'run'], /--range run takes the range over every frame of a run directory/],
       [['-o', join(dir, 'z.jpg')], /write \.png or \.svg/],
     ];
     for (const [args, pattern] of cases) {
