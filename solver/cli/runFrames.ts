@@ -1,0 +1,44 @@
+import { existsSync, readFileSync, statSync } from 'node:fs';
+import { basename, join } from 'node:path';
+import { loadMeshFile } from '../io/meshFiles.ts';
+import { RUN_FILES, speciesFromProperties } from '../io/runFiles.ts';
+import type { Mesh } from '../mesh/Mesh.ts';
+import { UsageError } from './UsageError.ts';
+
+export interface FrameRef {
+  file: string;
+  /** simulated time, when known from the run's record */
+  time?: number;
+}
+
+/** The frames of a run directory (with the final state apart), or a single frame file. */
+export function runFrames(input: string): { isRun: boolean; frames: FrameRef[]; final?: string } {
+  if (!existsSync(input)) throw new UsageError(`${input}: no such run directory or frame file`);
+  if (!statSync(input).isDirectory()) return { isRun: false, frames: [{ file: input }] };
+  const record = join(input, RUN_FILES.record);
+  if (!existsSync(record)) throw new UsageError(`${input} is not a run directory (no ${RUN_FILES.record})`);
+  const frames: { file: string; time: number }[] = JSON.parse(readFileSync(record, 'utf8')).frames ?? [];
+  const final = join(input, RUN_FILES.final);
+  return { isRun: true, frames: frames.map((f) => ({ file: join(input, f.file), time: f.time })), final: existsSync(final) ? final : undefined };
+}
+
+export interface Snapshot {
+  name: string;
+  mesh: Mesh;
+  fields: Record<string, Float64Array>;
+}
+
+/** A frame file's surface and species. */
+export function loadSnapshot(file: string): Snapshot {
+  const imported = loadMeshFile(file);
+  const fields = speciesFromProperties(imported.vertexData);
+  if (!Object.keys(fields).length) throw new UsageError(`${file} holds no species (float vertex properties named species_<name>): is it a frame of a run?`);
+  return { name: basename(file).replace(/\.ply$/, ''), mesh: imported.mesh, fields };
+}
+
+/** Smallest and largest value of a species over frame files (a colour range shared by a whole run). */
+export function speciesRange(files: readonly string[], species: string): [number, number] | undefined {
+  let lo = Infinity, hi = -Infinity;
+  for (const f of files) for (const x of loadSnapshot(f).fields[species] ?? []) { lo = Math.min(lo, x); hi = Math.max(hi, x); }
+  return hi > lo ? [lo, hi] : undefined;
+}
