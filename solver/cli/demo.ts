@@ -6,6 +6,7 @@ import { saveMeshFile } from '../io/meshFiles.ts';
 import { saveModeFile } from './saveModeFile.ts';
 import { laplaceBeltramiEigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
 import { runScenarioFile } from './runScenario.ts';
+import { runFigure } from './figure.ts';
 import { loadMeshFile } from '../io/meshFiles.ts';
 import { speciesFromProperties, RUN_FILES } from '../io/runFiles.ts';
 import { thresholdComponents } from '../analysis/thresholdComponents.ts';
@@ -57,5 +58,7 @@ export async function runDemo(outDir: string): Promise<void> {
   say(`  activator spots along the run: ${counts.slice(1).join(' → ')}; at t=${outcome.time} ${patches.length} patches above the mid-range`);
   const inserted = record.analysis.events.filter((e: { kind: string }) => e.kind === 'insertion' || e.kind === 'split').length;
   say(`  ${inserted} spot insertions or splits while the paddle grew (record.json → analysis.events)`);
+  const figure = runFigure(runDir, { out: join(outDir, 'paddle-sheet.png'), sheet: true, species: 'u', colormap: 'magma', view: 'top', title: 'Growing limb-bud paddle: activator u', width: 1400, height: 1000, dpi: 150, force: true });
+  say(`  figure of every frame: ${figure}`);
   say(`  outputs are in ${resolve(outDir)} (open the .ply files in any mesh viewer; colours show u)`);
 }

@@ -27,6 +27,8 @@ export interface FigureSpec {
 
 interface Layout {
   cells: { left: number; top: number; width: number; height: number }[];
+  /** one scale for every panel (pixels per unit), so a growing surface is seen growing */
+  scale: number;
   bar: { left: number; top: number; width: number; height: number };
   titleY: number;
   range: [number, number];
@@ -46,7 +48,8 @@ function layout(spec: FigureSpec, unit = 1): Layout {
   const cw = (spec.width - (BAR_SPACE + 12) * u) / cols, ch = (spec.height - top - 12 * u) / rows;
   const cells = spec.panels.map((_, k) => ({ left: 12 * u + (k % cols) * cw, top: top + Math.floor(k / cols) * ch, width: cw, height: ch - labelSpace }));
   const barH = Math.min(spec.height - top - 60 * u, 320 * u);
-  return { cells, bar: { left: spec.width - (BAR_SPACE - 20) * u, top: top + (spec.height - top - barH) / 2, width: 18 * u, height: barH }, titleY: 26 * u, range };
+  const scale = Math.min(...spec.panels.map((p, k) => projectSurface(p.mesh, spec.view, cells[k]).scale));
+  return { scale, cells, bar: { left: spec.width - (BAR_SPACE - 20) * u, top: top + (spec.height - top - barH) / 2, width: 18 * u, height: barH }, titleY: 26 * u, range };
 }
 
 const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;');
@@ -63,7 +66,7 @@ export function surfaceFigureSvg(spec: FigureSpec): string {
   if (spec.title) out.push(`<text class="title" x="${(spec.width - BAR_SPACE) / 2}" y="${L.titleY}" text-anchor="middle" font-size="17">${esc(spec.title)}</text>`);
   spec.panels.forEach((panel, k) => {
     const cell = L.cells[k];
-    const v = projectSurface(panel.mesh, spec.view, cell);
+    const v = projectSurface(panel.mesh, spec.view, cell, undefined, L.scale);
     const colors = colorizeField(panel.values, spec.colormap, L.range);
     const tri = panel.mesh.triangles;
     const order = Array.from({ length: tri.length / 3 }, (_, t) => t);
@@ -109,7 +112,7 @@ export function surfaceFigurePng(spec: FigureSpec, dpi = 150): Uint8Array {
   const rgb = new Float32Array(W * H * 3).fill(255);
   const zbuf = new Float64Array(W * H).fill(-Infinity);
   spec.panels.forEach((panel, k) => {
-    const v = projectSurface(panel.mesh, spec.view, L.cells[k]);
+    const v = projectSurface(panel.mesh, spec.view, L.cells[k], undefined, L.scale);
     const colors = colorizeField(panel.values, spec.colormap, L.range);
     const tri = panel.mesh.triangles;
     for (let t = 0; t < tri.length; t += 3) {

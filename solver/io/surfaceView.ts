@@ -25,9 +25,10 @@ export interface ProjectedSurface {
  * Orthographic view of a surface from a direction (azimuth, elevation), fitted
  * into a `width`×`height` pixel box with a margin. Shading is a headlight
  * (light from the viewer): ambient + (1 − ambient)·|n·d|, so both sides of a
- * thin sheet read and colours stay recognisable.
+ * thin sheet read and colours stay recognisable. `fixedScale` (pixels per
+ * unit) replaces the fit, so panels of a growing surface share one scale.
  */
-export function projectSurface(mesh: Mesh, view: { azimuth: number; elevation: number }, box: { left: number; top: number; width: number; height: number }, ambient = 0.35): ProjectedSurface {
+export function projectSurface(mesh: Mesh, view: { azimuth: number; elevation: number }, box: { left: number; top: number; width: number; height: number }, ambient = 0.35, fixedScale?: number): ProjectedSurface & { scale: number } {
   const az = (view.azimuth * Math.PI) / 180, el = (view.elevation * Math.PI) / 180;
   // viewing direction d (towards the viewer), screen right r and up u
   const d = [Math.cos(el) * Math.cos(az), Math.cos(el) * Math.sin(az), Math.sin(el)];
@@ -45,7 +46,7 @@ export function projectSurface(mesh: Mesh, view: { azimuth: number; elevation: n
     minX = Math.min(minX, sx[i]); maxX = Math.max(maxX, sx[i]); minY = Math.min(minY, sy[i]); maxY = Math.max(maxY, sy[i]);
   }
   const margin = 0.05;
-  const scale = Math.min(box.width / ((maxX - minX) * (1 + 2 * margin) || 1), box.height / ((maxY - minY) * (1 + 2 * margin) || 1));
+  const scale = fixedScale ?? Math.min(box.width / ((maxX - minX) * (1 + 2 * margin) || 1), box.height / ((maxY - minY) * (1 + 2 * margin) || 1));
   const cx = (minX + maxX) / 2, cy = (minY + maxY) / 2;
   for (let i = 0; i < n; i++) {
     sx[i] = box.left + box.width / 2 + (sx[i] - cx) * scale;
@@ -53,7 +54,7 @@ export function projectSurface(mesh: Mesh, view: { azimuth: number; elevation: n
   }
   const normals = vertexNormals(mesh);
   for (let i = 0; i < n; i++) shade[i] = ambient + (1 - ambient) * Math.abs(normals[3 * i] * d[0] + normals[3 * i + 1] * d[1] + normals[3 * i + 2] * d[2]);
-  return { x: sx, y: sy, depth, shade };
+  return { x: sx, y: sy, depth, shade, scale };
 }
 
 /** Round tick values covering [lo, hi] (about `count` of them). */
