@@ -55,6 +55,8 @@ export interface GrowthPlan {
   makeLaw(reference: Float64Array, refinements: readonly Refinement[]): GrowthLaw;
   description: string;
   tolerance: number;
+  /** centre of the scaling laws (given, or the area centroid) */
+  centre?: [number, number, number];
   refine?: { edgeGrowth: number; maxEdge: number; maxVertices: number };
 }
 
@@ -575,6 +577,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     if (makeLaw) {
       growth = {
         makeLaw,
+        centre: g.law === 'uniform' || g.law === 'anisotropic' ? c : undefined,
         description: makeLaw(mesh.positions, []).description,
         tolerance: g.tolerance ?? 1e-3,
         refine: g.refine ? { edgeGrowth: g.refine.edgeGrowth ?? Infinity, maxEdge: refineEdgeFor(g.refine.perWavelength), maxVertices: g.refine.maxVertices ?? 400_000 } : undefined,
@@ -593,7 +596,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     time: { scheme, step, end, steps, steadyState: sc.time.steadyState, solver: scheme === 'imex' ? solver : undefined, solverChoice: scheme === 'imex' ? solverReason : undefined, tolerance: scheme === 'imex' ? sc.time.tolerance ?? 1e-8 : undefined },
     output,
     analysis,
-    growth: growth ? { ...sc.growth, centre: sc.growth?.centre ?? undefined, description: growth.description, tolerance: growth.tolerance } : undefined,
+    growth: growth ? { ...sc.growth, centre: growth.centre, description: growth.description, tolerance: growth.tolerance } : undefined,
     explicitLimit,
   };
   return {
