@@ -59,6 +59,27 @@ export function steadyStatesOf(r: ResolvedScenario, parameters: number[], seed =
   return numericalSteadyStates(r.kinetics, parameters, seed).map((v) => classifyState(r.kinetics, parameters, v, 'numerical'));
 }
 
+/** The steady state a scenario's analysis concerns: its initial.steadyState, else the first. */
+export function analysedStateIndex(r: ResolvedScenario): number {
+  return (r.summary.initial as { steadyState?: number } | undefined)?.steadyState ?? 0;
+}
+
+/**
+ * Eigenpairs needed to reach the upper edge k²max of an unstable band on a
+ * surface of this area (Weyl's law: about area·k²/(4π) eigenvalues lie below
+ * k², with a 25 % margin and a dozen more), or undefined without a finite band.
+ */
+export function modesToCoverBand(area: number, band: [number, number] | null | undefined): number | undefined {
+  return band && Number.isFinite(band[1]) ? Math.ceil((1.25 * area * band[1]) / (4 * Math.PI)) + 12 : undefined;
+}
+
+/** The unstable band of the analysed steady state (no surface needed), or null. */
+export function scenarioBand(r: ResolvedScenario): [number, number] | null {
+  const values = constantValues(r);
+  const state = steadyStatesOf(r, values.parameters, r.seed)[analysedStateIndex(r)];
+  return state ? turingAnalysis(state.jacobian, values.diffusion).band : null;
+}
+
 /**
  * Linear stability of a scenario's kinetics and its consequence on the
  * scenario's surface: steady states, the Turing analysis of the chosen one, the
@@ -74,7 +95,7 @@ export function stabilityReport(r: ResolvedScenario, options: { maxModes?: numbe
   const { parameters, diffusion, notes } = constantValues(r, mass);
   const nS = r.species.length;
   const states = steadyStatesOf(r, parameters, r.seed);
-  const stateIndex = options.stateIndex ?? ((r.summary.initial as { steadyState?: number } | undefined)?.steadyState ?? 0);
+  const stateIndex = options.stateIndex ?? analysedStateIndex(r);
   const chosen = states[stateIndex];
   const named = (values: number[]) => Object.fromEntries(r.species.map((s, i) => [s, values[i]]));
   const report: StabilityReport & { eigenpairs: Eigenpairs | null } = {
@@ -106,7 +127,7 @@ export function stabilityReport(r: ResolvedScenario, options: { maxModes?: numbe
     report.dispersion.rate.push(growthRate(J, diffusion, k2));
   }
   const maxModes = options.maxModes ?? 200;
-  const wanted = turing.band && Number.isFinite(turing.band[1]) ? Math.ceil(1.25 * (area * turing.band[1]) / (4 * Math.PI)) + 12 : 20;
+  const wanted = modesToCoverBand(area, turing.band) ?? 20;
   const count = Math.min(maxModes, wanted, r.mesh.positions.length / 3 - 1);
   const eig = options.eigenpairs ?? laplaceBeltramiEigenpairs(r.mesh, { count, mass: 'lumped' });
   report.eigenpairs = eig;

@@ -9,8 +9,7 @@ import { ReactionDiffusionStepper } from '../integrate/ReactionDiffusionStepper.
 import { meshArea } from '../mesh/triangleAreas.ts';
 import { forgetMeshTopology, meshTopology } from '../mesh/meshTopology.ts';
 import { laplaceBeltramiEigenpairs, type Eigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
-import { stabilityReport, constantValues, steadyStatesOf } from '../analysis/stabilityReport.ts';
-import { turingAnalysis } from '../analysis/dispersion.ts';
+import { stabilityReport, scenarioBand, modesToCoverBand } from '../analysis/stabilityReport.ts';
 import { measurePattern } from '../analysis/measurePattern.ts';
 import { patchEvents } from '../analysis/patchEvents.ts';
 import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
@@ -203,7 +202,6 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   // the surface: the start mesh, or (resuming a growing run) its refinements moved to the saved positions
   let system = r.system;
   let growthReference = r.mesh.positions;
-  let refinements = 0;
   const refinementList: Refinement[] = [];
   const refineSystem = () => {
     const rf = refineMidpoint(system.mesh);
@@ -211,7 +209,6 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     const prolong = (v: number | Float64Array) => (typeof v === 'number' ? v : prolongField(v, rf));
     growthReference = prolongField(growthReference, rf, 3);
     system = { mesh: rf.mesh, kinetics: system.kinetics, parameters: system.parameters.map(prolong), diffusion: system.diffusion.map(prolong) };
-    refinements++;
     return rf;
   };
   if (saved?.growth) {
@@ -230,14 +227,13 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   let edgeAtRefinement = saved?.growth?.edgeAtRefinement ?? meanEdge(system.mesh);
   // pattern measures: vertex adjacency, and surface eigenpairs for the spectrum and the prediction
   let eig: Eigenpairs | undefined;
-  const linearBand = growing && r.analysis.modes > 0 ? predictedBand(r) : null;
+  const band = growing && r.analysis.modes > 0 ? scenarioBand(r) : null;
   const updateEigenpairs = (atStep: number) => {
     const surface = stepper.surface;
     const eigArea = meshArea(surface);
-    // enough modes to reach the unstable band on the grown surface (Weyl: about area·k²/(4π) below k²)
-    const band = linearBand;
-    const weyl = band && Number.isFinite(band[1]) ? Math.ceil((1.25 * eigArea * band[1]) / (4 * Math.PI)) + 12 : 0;
-    eig = laplaceBeltramiEigenpairs(surface, { count: Math.min(Math.max(r.analysis.modes, weyl), MAX_TRACKED_MODES, n - 1), mass: 'lumped' });
+    // enough modes to reach the unstable band on the grown surface
+    const wanted = Math.max(r.analysis.modes, modesToCoverBand(eigArea, band) ?? 0);
+    eig = laplaceBeltramiEigenpairs(surface, { count: Math.min(wanted, MAX_TRACKED_MODES, n - 1), mass: 'lumped' });
     record.analysis.modesUpTo = eig.values[eig.values.length - 1];
     const rep = stabilityReport({ ...r, mesh: surface, system }, { eigenpairs: eig });
     const prediction = { state: rep.state, band: rep.turing?.band ?? null, fastest: rep.turing?.fastest ?? null, predicted: rep.predicted, notes: rep.notes };
@@ -245,13 +241,15 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     if (growing) (record.analysis.predictions ??= []).push({ time: atStep * dt, area: eigArea, vertices: n, predicted: rep.predicted });
   };
   if (r.analysis.modes > 0 && !growing) updateEigenpairs(saved?.step ?? 0);
+  // the vertex adjacency the pattern measures walk, kept apart from the rest of the topology
+  const adjacency = (mesh: Mesh) => {
+    const topo = meshTopology(mesh);
+    return { vertexNeighbourOffsets: topo.vertexNeighbourOffsets, vertexNeighbours: topo.vertexNeighbours };
+  };
+  let neighbours = adjacency(system.mesh);
   if (!growing) forgetMeshTopology(r.mesh); // the stepper holds all it needs; free edges and the CSR pattern
   const measuredIndex = r.species.indexOf(r.analysis.species);
-  const measure = (state: Float64Array) => {
-    const surface = stepper.surface;
-    const topo = meshTopology(surface);
-    return measurePattern(surface, speciesField(state, nS, measuredIndex), stepper.mass, topo, r.analysis.threshold, eig);
-  };
+  const measure = (state: Float64Array) => measurePattern(stepper.surface, speciesField(state, nS, measuredIndex), stepper.mass, neighbours, r.analysis.threshold, eig);
   let previousLabels: Int32Array | undefined = saved ? measure(saved.state).labels : undefined;
   stepper.setState(saved ? saved.state : r.initial);
   let step = saved?.step ?? 0;
@@ -273,7 +271,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     writeFileAtomic(join(out, RUN_FILES.record), JSON.stringify(record, null, 2) + '\n', true);
   };
   const saveState = (state: Float64Array, atStep: number) => {
-    const growth = driver ? { refinements, lastUpdate: driver.lastUpdate, nextUpdate: driver.nextUpdate, edgeAtRefinement, positions: stepper.surface.positions } : undefined;
+    const growth = driver ? { refinements: refinementList.length, lastUpdate: driver.lastUpdate, nextUpdate: driver.nextUpdate, edgeAtRefinement, positions: stepper.surface.positions } : undefined;
     writeFileAtomic(join(out, RUN_FILES.state), encodeState({ step: atStep, time: atStep * dt, nextFrame, species: [...r.species], vertexCount: n, meshChecksum: checksum, dt, state, reference, growth }), true);
   };
   const comments = (atStep: number) => [`placode ${VERSION} run ${r.name}`, `time ${atStep * dt} step ${atStep}`];
@@ -376,6 +374,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
           driver = new GrowthDriver(r.growth!.makeLaw(growthReference, refinementList), n, r.growth!.tolerance, step);
           driver.start(stepper, step, dt);
           edgeAtRefinement = meanEdge(stepper.surface);
+          neighbours = adjacency(stepper.surface);
           previousLabels = undefined;
           if (reference) reference = prolongField(reference, rf, nS);
           record.growth!.refinements.push({ time: step * dt, step, from: before, to: n });
@@ -466,13 +465,6 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     process.off('SIGTERM', onSignal);
     progress.stop();
   }
-}
-
-/** The unstable band of the run's steady state (no surface needed), or null. */
-function predictedBand(r: ResolvedScenario): [number, number] | null {
-  const values = constantValues(r);
-  const state = steadyStatesOf(r, values.parameters, r.seed)[(r.summary.initial as { steadyState?: number } | undefined)?.steadyState ?? 0];
-  return state ? turingAnalysis(state.jacobian, values.diffusion).band : null;
 }
 
 /** The most eigenpairs a growing run computes to follow its predicted mode. */

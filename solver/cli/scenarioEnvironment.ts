@@ -6,7 +6,8 @@ import type { Mesh } from '../mesh/Mesh.ts';
 import { loadMeshFile } from '../io/meshFiles.ts';
 import type { MeshSpec } from '../io/Scenario.ts';
 import type { LoadedMesh, ScenarioEnvironment } from '../io/resolveScenario.ts';
-import { RUN_FILES, decodeState, speciesFromProperties } from '../io/runFiles.ts';
+import { RUN_FILES, decodeState } from '../io/runFiles.ts';
+import { loadSnapshot } from './runFrames.ts';
 import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
 import { validateMesh } from '../mesh/validateMesh.ts';
 import { repairMesh } from './meshSource.ts';
@@ -31,7 +32,7 @@ export function loadRunState(dir: string): { species: string[]; values: Record<s
   }
   const ply = join(dir, RUN_FILES.final);
   if (!existsSync(ply)) throw new Error(`"${dir}" holds neither ${RUN_FILES.state} nor ${RUN_FILES.final}: is it a finished run?`);
-  const values = speciesFromProperties(loadMeshFile(ply).vertexData);
+  const values = loadSnapshot(ply).fields;
   return { species: Object.keys(values), values };
 }
 

@@ -219,6 +219,15 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   const nS = species.length;
   const kin = kinetics!;
 
+  /** a per-vertex value of the mesh file, or a problem naming the ones it has */
+  const vertexDataOf = (name: string, path: (string | number)[]): Float64Array | undefined => {
+    const data = loaded.vertexData[name];
+    if (!data) {
+      const names = Object.keys(loaded.vertexData);
+      problems.add(path, `the mesh has no per-vertex value "${name}"; ${names.length ? `it has ${names.join(', ')}` : 'it carries no per-vertex values (PLY files can, as extra vertex properties)'}`);
+    }
+    return data;
+  };
   // ---- parameters: constants first (field formulas may use them), then fields
   const fieldValue = (value: FieldValue, path: (string | number)[], constants: Record<string, number>): number | Float64Array | undefined => {
     if (typeof value === 'number') return value;
@@ -231,13 +240,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
         return undefined;
       }
     }
-    const data = loaded.vertexData[value.vertexData];
-    if (!data) {
-      const names = Object.keys(loaded.vertexData);
-      problems.add(path, `the mesh has no per-vertex value "${value.vertexData}"; ${names.length ? `it has ${names.join(', ')}` : 'it carries no per-vertex values (PLY files can, as extra vertex properties)'}`);
-      return undefined;
-    }
-    return data;
+    return vertexDataOf(value.vertexData, path);
   };
   const constants: Record<string, number> = {};
   for (const [name, v] of Object.entries(parameterSpec)) if (typeof v === 'number') constants[name] = v;
@@ -418,13 +421,20 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   }
   const steps = Math.max(1, Math.ceil(end / step - 1e-9));
   if (Math.abs(steps * step - end) > 1e-9 * end) warnings.push(`time.end ${end} is not a whole number of steps of ${step}; the run ends at ${steps * step}`);
+  // parameter values for the linear analyses below (fields as 0 unless a constant shadows them),
+  // and the steady state they are taken at: the chosen closed-form one, else Newton's, computed once
+  const constantParams = Object.keys(parameterSpec).map((name, j) => (typeof paramValues[j] === 'number' ? (paramValues[j] as number) : constants[name] ?? 0));
+  let linearStateMemo: number[] | undefined | null = null;
+  const linearState = (): number[] | undefined => {
+    if (linearStateMemo === null) linearStateMemo = uniformSteady ?? numericalSteadyStates(kin, constantParams, seed)[steadyIndex];
+    return linearStateMemo;
+  };
   // the reactions are stepped explicitly in both schemes: forward Euler is stable at the steady
   // state only if |1 + dt·λ| ≤ 1 for every eigenvalue λ of its Jacobian
   if (uniformSteady || !model?.steadyStates) {
-    const paramsNow = Object.keys(parameterSpec).map((name, j) => (typeof paramValues[j] === 'number' ? (paramValues[j] as number) : constants[name] ?? 0));
-    const state = uniformSteady ?? numericalSteadyStates(kin, paramsNow, seed)[steadyIndex];
+    const state = linearState();
     if (state) {
-      const eigen = smallMatrixEigenvalues(Array.from(kin.jacobian(state, paramsNow)), nS);
+      const eigen = smallMatrixEigenvalues(Array.from(kin.jacobian(state, constantParams)), nS);
       let limit = Infinity, worst = 0;
       for (const [re, im] of eigen) {
         worst = Math.max(worst, Math.hypot(1 + step * re, step * im));
@@ -467,10 +477,9 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     /** the longest mean edge that keeps `perWavelength` edges per fastest-growing wavelength 2π/√k² */
     const refineEdgeFor = (perWavelength: number | undefined): number => {
       if (perWavelength === undefined) return Infinity;
-      const p = Object.keys(parameterSpec).map((name, j) => (typeof paramValues[j] === 'number' ? (paramValues[j] as number) : constants[name] ?? 0));
       const d = diffusion.map((x) => (typeof x === 'number' ? x : x.reduce((a, b) => a + b, 0) / x.length));
-      const state = uniformSteady ?? numericalSteadyStates(kin, p, seed)[steadyIndex];
-      const fastest = state ? turingAnalysis(Array.from(kin.jacobian(state, p)), d).fastest : null;
+      const state = linearState();
+      const fastest = state ? turingAnalysis(Array.from(kin.jacobian(state, constantParams)), d).fastest : null;
       if (!fastest) {
         problems.add(['growth', 'refine', 'perWavelength'], 'the kinetics has no unstable band here, so no pattern wavelength to refine for; use edgeGrowth');
         return Infinity;
@@ -557,11 +566,8 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
             return undefined;
           }
         }
-        const values = loaded.vertexData[spec.vertexData];
-        if (!values) {
-          problems.add(['growth', key], `the mesh has no per-vertex value "${spec.vertexData}"${Object.keys(loaded.vertexData).length ? `; it has ${Object.keys(loaded.vertexData).join(', ')}` : ''}`);
-          return undefined;
-        }
+        const values = vertexDataOf(spec.vertexData, ['growth', key]);
+        if (!values) return undefined;
         return (refinements) => {
           const v = refinements.reduce<Float64Array>((acc, rf) => prolongField(acc, rf), Float64Array.from(values));
           return (i) => v[i];
