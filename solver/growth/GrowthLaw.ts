@@ -8,8 +8,6 @@ import type { Mesh } from '../mesh/Mesh.ts';
 export interface GrowthLaw {
   /** one line for records and logs */
   readonly description: string;
-  /** linear scale factor ρ(t) where the law has one (uniform growth), else undefined */
-  scaleAt?(t: number): number;
   advance(mesh: Mesh, t0: number, t1: number, out: Float64Array): void;
 }
 

@@ -15,7 +15,6 @@ export function affineGrowth(reference: Float64Array, rates: [number, number, nu
     description: uniform
       ? `uniform ${course} scaling about (${centre.join(', ')}) at rate ${rates[0]}${course === 'logistic' ? `, up to ${capacity}×` : ''}`
       : `anisotropic ${course} scaling about (${centre.join(', ')}) at rates ${rates.map((r, k) => `${r} along (${A[k].map((x) => Number(x.toPrecision(4))).join(', ')})`).join(', ')}`,
-    scaleAt: uniform ? (t) => scaleFactor(course, rates[0], t, capacity) : undefined,
     advance(_mesh: Mesh, _t0: number, t1: number, out: Float64Array) {
       const s = scales(t1);
       // the linear map Σ_k ρ_k a_k a_kᵀ, once
