@@ -8,7 +8,7 @@ import { lumpedMass } from '../fem/lumpedMass.ts';
 import type { ReactionDiffusionSystem } from './ReactionDiffusionSystem.ts';
 import { compileExplicitKernel, compileImexRhsKernel, type DiffusionKind, type ExplicitKernel, type ImexRhsKernel, type KernelLayout } from './stepKernels.ts';
 import { compileFusedCg, type FusedCgSolver } from './fusedConjugateGradient.ts';
-import { triangleMeans } from './triangleMeans.ts';
+import { diffusionStiffness } from './diffusionStiffness.ts';
 import type { RowProductPlan } from './rowProductCode.ts';
 
 export type SchemeName = 'explicit' | 'imex';
@@ -103,9 +103,8 @@ export class ReactionDiffusionStepper {
         this.coefficient[s] = dt * d;
       } else {
         kinds.push('field');
-        const coefficient = triangleMeans(mesh.triangles, d);
+        const { matrix: k, triangleD: coefficient } = diffusionStiffness(mesh, d, stiffness);
         triangleD.push(coefficient);
-        const k = cotanStiffness(mesh, { ...stiffness, values: new Float64Array(stiffness.values.length) }, coefficient);
         weightSet.push(this.sets.length);
         csrOf.push(k);
         this.sets.push(ellValues(pattern, k, rowScale));
@@ -127,7 +126,7 @@ export class ReactionDiffusionStepper {
     } else {
       this.rhsKernel = compileImexRhsKernel(layout);
       if (this.options.solver === 'cholesky') {
-        this.factors = this.buildFactors(csrOf, weightSet, mass);
+        this.factors = this.buildFactors(csrOf, weightSet);
         this.column = new Float64Array(n);
         this.solution = new Float64Array(n);
       } else {
@@ -185,12 +184,15 @@ export class ReactionDiffusionStepper {
   }
 
   private refactorAll(mv: NonNullable<ReactionDiffusionStepper['moving']>): void {
-    for (const { factor, species } of this.factors!) {
-      const s = species[0], g = mv.weightSet[s];
-      const scale = g < 0 ? 0 : this.coefficient[s];
-      const k = mv.csr[Math.max(0, g)];
-      factor.refactor(csrAddDiagonal({ ...k, values: k.values.map((v) => scale * v) }, this.mass));
-    }
+    for (const { factor, species } of this.factors!) factor.refactor(this.implicitMatrix(species[0], mv.csr, mv.weightSet));
+  }
+
+  /** M + c_s·K_s, the matrix species s solves with in the implicit–explicit step. */
+  private implicitMatrix(s: number, csrOf: readonly CsrMatrix[], weightSet: readonly number[]): CsrMatrix {
+    const g = weightSet[s];
+    const scale = g < 0 ? 0 : this.coefficient[s];
+    const k = csrOf[Math.max(0, g)];
+    return csrAddDiagonal({ ...k, values: k.values.map((v) => scale * v) }, this.mass);
   }
 
   /** The surface as it is now (moved by `setGeometry`). */
@@ -199,21 +201,14 @@ export class ReactionDiffusionStepper {
   }
 
   /** One factorisation per distinct matrix M + c_s K_s (species with equal D share it). */
-  private buildFactors(csrOf: CsrMatrix[], weightSet: number[], mass: Float64Array): { factor: SparseCholesky; species: number[] }[] {
+  private buildFactors(csrOf: CsrMatrix[], weightSet: number[]): { factor: SparseCholesky; species: number[] }[] {
     const groups: { key: string; species: number[] }[] = [];
     weightSet.forEach((g, s) => {
       const key = g < 0 ? 'none' : `${g}:${this.coefficient[s]}`;
       const found = groups.find((x) => x.key === key);
       if (found) found.species.push(s); else groups.push({ key, species: [s] });
     });
-    return groups.map(({ species }) => {
-      const s = species[0];
-      const g = weightSet[s];
-      const scale = g < 0 ? 0 : this.coefficient[s];
-      const k = csrOf[Math.max(0, g)];
-      const a: CsrMatrix = { ...k, values: k.values.map((v) => scale * v) };
-      return { factor: new SparseCholesky(csrAddDiagonal(a, mass)), species };
-    });
+    return groups.map(({ species }) => ({ factor: new SparseCholesky(this.implicitMatrix(species[0], csrOf, weightSet)), species }));
   }
 
   /** The current state (vertex-major). Write into it to set initial values. */

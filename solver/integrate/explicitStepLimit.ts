@@ -1,6 +1,5 @@
 import type { ReactionDiffusionSystem } from './ReactionDiffusionSystem.ts';
-import { cotanStiffness } from '../fem/cotanStiffness.ts';
-import { triangleMeans } from './triangleMeans.ts';
+import { diffusionStiffness } from './diffusionStiffness.ts';
 import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
 import { seededRandom } from '../linalg/seededRandom.ts';
 
@@ -81,7 +80,7 @@ export function systemExplicitLimit(system: ReactionDiffusionSystem, stiffness: 
   if (dMax > 0) candidates.push(explicitStepLimit(stiffness, mass, dMax));
   for (const d of system.diffusion) {
     if (typeof d === 'number') continue;
-    const k = cotanStiffness(system.mesh, { ...stiffness, values: new Float64Array(stiffness.values.length) }, triangleMeans(system.mesh.triangles, d));
+    const k = diffusionStiffness(system.mesh, d, stiffness).matrix;
     candidates.push(explicitStepLimit(k, mass, 1));
   }
   return candidates.reduce(
