@@ -1,10 +1,10 @@
 import { mkdirSync } from 'node:fs';
 import { basename, join } from 'node:path';
 import { writeFileAtomic } from '../io/meshFiles.ts';
-import { colorizeField, COLORMAP_NAMES, type ColormapName } from '../io/colormap.ts';
+import { colorizeField } from '../io/colormap.ts';
 import { writeAnimatedGlb } from '../io/writeGlb.ts';
 import { encodeSnapshot, type SnapshotFormat } from '../io/encodeSnapshot.ts';
-import { runFrames, loadSnapshot, speciesRange } from './runFrames.ts';
+import { runFrames, loadSnapshot, speciesRange, colormapOption, fixedRangeOption } from './runFrames.ts';
 import { UsageError } from './UsageError.ts';
 
 export type ExportFormat = SnapshotFormat;
@@ -47,8 +47,7 @@ export async function exportRun(input: string, o: ExportOptions): Promise<string
     if (o.frame >= frameFiles.length) throw new UsageError(`--frame ${o.frame}: the run has frames 0–${frameFiles.length - 1}`);
     chosen = [frameFiles[o.frame]];
   } else chosen = [files[files.length - 1]];
-  const colormap = (o.colormap ?? 'viridis') as ColormapName;
-  if (!COLORMAP_NAMES.includes(colormap)) throw new UsageError(`unknown colormap "${colormap}"; choose one of ${COLORMAP_NAMES.join(', ')}`);
+  const colormap = colormapOption(o.colormap ?? 'viridis');
   const snapshots = chosen.map(loadSnapshot);
   const speciesNames = Object.keys(snapshots[0].fields);
   const species = o.species ?? speciesNames[speciesNames.length - 1];
@@ -58,9 +57,7 @@ export async function exportRun(input: string, o: ExportOptions): Promise<string
   if (rangeText === 'run') {
     range = speciesRange(isRun ? files : chosen, species);
   } else if (rangeText !== 'frame') {
-    const m = /^(-?[0-9.eE+-]+):(-?[0-9.eE+-]+)$/.exec(rangeText);
-    if (!m || !(Number(m[2]) > Number(m[1]))) throw new UsageError(`--range "${rangeText}" should be frame, run, or min:max with max > min`);
-    range = [Number(m[1]), Number(m[2])];
+    range = fixedRangeOption(rangeText, 'frame, run, or min:max with max > min');
   }
   if (o.animate) {
     if (o.format !== 'glb') throw new UsageError('--animate makes one animated .glb: use it with --format glb');

@@ -1,6 +1,5 @@
 import { writeFileAtomic } from '../io/meshFiles.ts';
-import { runFrames, loadSnapshot, speciesRange } from './runFrames.ts';
-import { COLORMAP_NAMES, type ColormapName } from '../io/colormap.ts';
+import { runFrames, loadSnapshot, speciesRange, colormapOption, fixedRangeOption } from './runFrames.ts';
 import { surfaceFigurePng, surfaceFigureSvg, type FigurePanel } from '../io/surfaceFigure.ts';
 import { VIEW_PRESETS } from '../io/surfaceView.ts';
 import { UsageError } from './UsageError.ts';
@@ -50,8 +49,7 @@ export function runFigure(input: string, o: FigureOptions): string {
     if (!snap.fields[species]) throw new UsageError(`--species ${species}: the frames hold ${names.join(', ')}`);
     panels.push({ mesh: snap.mesh, values: snap.fields[species], label: o.sheet ? f.label : undefined });
   }
-  const colormap = o.colormap as ColormapName;
-  if (!COLORMAP_NAMES.includes(colormap)) throw new UsageError(`unknown colormap "${colormap}"; choose one of ${COLORMAP_NAMES.join(', ')}`);
+  const colormap = colormapOption(o.colormap);
   let view = VIEW_PRESETS[o.view];
   if (!view) {
     const m = /^(-?[0-9.]+),(-?[0-9.]+)$/.exec(o.view);
@@ -63,9 +61,7 @@ export function runFigure(input: string, o: FigureOptions): string {
     if (!isRun) throw new UsageError('--range run takes the range over every frame of a run directory');
     range = speciesRange(listed.frames.map((f) => f.file), species!);
   } else if (o.range !== undefined) {
-    const m = /^(-?[0-9.eE+-]+):(-?[0-9.eE+-]+)$/.exec(o.range);
-    if (!m || !(Number(m[2]) > Number(m[1]))) throw new UsageError(`--range "${o.range}" should be min:max with max > min, or run`);
-    range = [Number(m[1]), Number(m[2])];
+    range = fixedRangeOption(o.range, 'min:max with max > min, or run');
   }
   if (!(o.width >= 100 && o.height >= 100 && o.width <= 8000 && o.height <= 8000)) throw new UsageError('--width and --height must be from 100 to 8000 pixels');
   const spec = { panels, species: species!, colormap, range, view, title: o.title, width: o.width, height: o.height };
