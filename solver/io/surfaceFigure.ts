@@ -1,7 +1,7 @@
 import { PNG } from 'pngjs';
 import type { Mesh } from '../mesh/Mesh.ts';
 import { colorizeField, colormapTable, type ColormapName } from './colormap.ts';
-import { projectSurface, niceTicks, tickLabel } from './surfaceView.ts';
+import { projectSurface, fitScale, niceTicks, tickLabel } from './surfaceView.ts';
 import { drawText, textWidth, GLYPH_HEIGHT } from './bitmapFont.ts';
 
 export interface FigurePanel {
@@ -48,7 +48,7 @@ function layout(spec: FigureSpec, unit = 1): Layout {
   const cw = (spec.width - (BAR_SPACE + 12) * u) / cols, ch = (spec.height - top - 12 * u) / rows;
   const cells = spec.panels.map((_, k) => ({ left: 12 * u + (k % cols) * cw, top: top + Math.floor(k / cols) * ch, width: cw, height: ch - labelSpace }));
   const barH = Math.min(spec.height - top - 60 * u, 320 * u);
-  const scale = Math.min(...spec.panels.map((p, k) => projectSurface(p.mesh, spec.view, cells[k]).scale));
+  const scale = Math.min(...spec.panels.map((p, k) => fitScale(p.mesh, spec.view, cells[k])));
   return { scale, cells, bar: { left: spec.width - (BAR_SPACE - 20) * u, top: top + (spec.height - top - barH) / 2, width: 18 * u, height: barH }, titleY: 26 * u, range };
 }
 
