@@ -101,9 +101,15 @@ function readScenarioText(file: string): string {
   }
 }
 
+/** Read, check and resolve a scenario file (meshes and previous runs found relative to it). */
+export function loadScenarioFile(file: string): { text: string; resolved: ResolvedScenario } {
+  const text = readScenarioText(file);
+  return { text, resolved: resolveScenario(parseScenario(text, file), file, nodeScenarioEnvironment(file)) };
+}
+
 /** Check a scenario and return its resolved plan (what `run` would do), without running it. */
 export function checkScenario(file: string): Record<string, unknown> {
-  const r = resolveScenario(parseScenario(readScenarioText(file), file), file, nodeScenarioEnvironment(file));
+  const r = loadScenarioFile(file).resolved;
   return { ...r.summary, vertices: r.mesh.positions.length / 3, warnings: r.warnings, meshNotes: r.meshNotes };
 }
 
@@ -114,11 +120,10 @@ export async function runScenarioFile(file: string, options: RunOptions): Promis
   if (isDirWithFiles(out) && !options.force) {
     throw new UsageError(`${options.out} already holds files; choose a new --out, add --force to replace it, or continue it with placode run --resume ${options.out}`);
   }
-  const text = readScenarioText(file);
   const t0 = performance.now();
-  const resolved = resolveScenario(parseScenario(text, file), file, nodeScenarioEnvironment(file));
+  const { text, resolved } = loadScenarioFile(file);
   if (options.force && existsSync(out)) {
-    for (const name of [RUN_FILES.record, RUN_FILES.metrics, RUN_FILES.state, RUN_FILES.final]) rmSync(join(out, name), { force: true });
+    for (const name of [RUN_FILES.record, RUN_FILES.metrics, RUN_FILES.state, RUN_FILES.final, 'final.glb', 'final.obj', 'final.csv']) rmSync(join(out, name), { force: true });
     rmSync(join(out, RUN_FILES.frames), { recursive: true, force: true });
   }
   mkdirSync(join(out, RUN_FILES.frames), { recursive: true });

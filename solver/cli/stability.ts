@@ -1,12 +1,9 @@
-import { readFileSync } from 'node:fs';
-import { parseScenario } from '../io/readScenario.ts';
-import { resolveScenario } from '../io/resolveScenario.ts';
+import { loadScenarioFile } from './runScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { stabilityReport } from '../analysis/stabilityReport.ts';
 import { parameterMap, parameterMapCsv, type MapAxis } from '../analysis/parameterMap.ts';
 import { parameterMapSvg } from '../io/parameterMapSvg.ts';
 import { saveModeFile } from './saveModeFile.ts';
-import { nodeScenarioEnvironment } from './scenarioEnvironment.ts';
 import { UsageError } from './UsageError.ts';
 
 export interface StabilityOptions {
@@ -35,13 +32,7 @@ const fmt = (x: number) => (x === 0 ? '0' : Math.abs(x) >= 1e4 || Math.abs(x) < 
 export function runStability(file: string, o: StabilityOptions, out: (s: string) => void): void {
   if (o.map && o.map.length !== 2) throw new UsageError('--map takes exactly two parameters (repeat it: --map F=…  --map k=…)');
   if (o.map && !o.mapOut) throw new UsageError('--map needs --map-out PREFIX (writes PREFIX.csv and PREFIX.svg)');
-  let text: string;
-  try {
-    text = readFileSync(file, 'utf8');
-  } catch {
-    throw new UsageError(`${file}: no such scenario file`);
-  }
-  const r = resolveScenario(parseScenario(text, file), file, nodeScenarioEnvironment(file));
+  const r = loadScenarioFile(file).resolved;
   const report = stabilityReport(r, { maxModes: o.maxModes, stateIndex: o.state });
   const { eigenpairs, ...data } = report;
   if (o.paint) {
