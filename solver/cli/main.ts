@@ -17,6 +17,11 @@ import { runStability } from './stability.ts';
 import { exportRun, type ExportFormat } from './exportRun.ts';
 import { runFigure } from './figure.ts';
 import { VIEW_PRESETS } from '../io/surfaceView.ts';
+import { planSweep } from './sweepPlan.ts';
+import { runSweepTask, sweepStatus } from './sweepTask.ts';
+import { runSweepLocal } from './sweepPool.ts';
+import { writeSlurmArray } from './sweepSlurm.ts';
+import { collectSweep } from './sweepCollect.ts';
 
 const collect = (value: string, previous: string[] = []) => previous.concat([value]);
 
@@ -269,6 +274,111 @@ export async function main(argv: string[]): Promise<number> {
         outcome = await runScenarioFile(file, { out: o.out, force: o.force, progress: o.progress, command: argv });
       }
       exitCode = outcome.reason === 'blow-up' || outcome.reason === 'degenerate' ? 3 : outcome.reason === 'interrupted' ? 130 : 0;
+    });
+
+  const sweep = program
+    .command('sweep')
+    .description('parameter sweeps: plan a manifest of runs, run it on every core or as a Slurm job array, follow it, collect the results');
+  sweep
+    .command('plan')
+    .argument('<sweep>', 'a sweep file (scenario: + vary:) or a scenario with a sweep: section')
+    .description('expand a sweep into DIR/manifest.jsonl (one run per line) and a scenario per run')
+    .requiredOption('-o, --out <dir>', 'sweep directory')
+    .option('--force', 'plan again into a directory that holds a sweep (finished runs with unchanged scenarios are kept)')
+    .action((file: string, o: { out: string; force?: boolean }) => {
+      const { entries, plan } = planSweep(file, o);
+      process.stdout.write(`planned ${entries.length} runs (${plan.design}${plan.duplicatesDropped ? `, ${plan.duplicatesDropped} duplicate points dropped` : ''}) in ${o.out}\n`);
+      process.stdout.write(`  run them here:      placode sweep run ${o.out}\n  or on Slurm:        placode sweep slurm ${o.out} --submit\n`);
+    });
+  sweep
+    .command('run')
+    .argument('<dir>', 'a planned sweep directory')
+    .description('run every unfinished run of a sweep on a pool of worker threads; finished runs are skipped')
+    .option('-w, --workers <n>', 'worker threads (default: every core)')
+    .option('--retry-failed', 'run failed runs again')
+    .addOption(new Option('--progress <mode>', 'progress display').choices(['auto', 'bar', 'lines', 'none']).default('auto'))
+    .action(async (dir: string, o: { workers?: string; retryFailed?: boolean; progress: 'auto' | 'bar' | 'lines' | 'none' }) => {
+      const r = await runSweepLocal(dir, { workers: parseCount(o.workers, '--workers', 1), retryFailed: o.retryFailed, progress: o.progress });
+      process.stdout.write(`${r.done} done, ${r.failed.length} failed, ${r.skipped} already finished, ${r.unfinished} unfinished of ${r.total} runs in ${r.seconds.toFixed(1)} s on ${r.workers} worker(s)\n`);
+      for (const f of r.failed) process.stdout.write(`  failed: run ${f.index} (${f.id}): ${f.message.split('\n')[0]}\n`);
+      if (r.interrupted) {
+        process.stdout.write(`interrupted; continue with: placode sweep run ${dir}\n`);
+        exitCode = 130;
+      } else if (r.failed.length) exitCode = 1;
+    });
+  sweep
+    .command('task')
+    .argument('<dir>', 'a planned sweep directory')
+    .description('run one entry of a sweep (what each Slurm array task runs)')
+    .requiredOption('--index <i>', 'manifest index (the Slurm array task id)')
+    .option('--retry-failed', 'run it again if it failed before')
+    .action(async (dir: string, o: { index: string; retryFailed?: boolean }) => {
+      let stop = false;
+      const onSignal = () => { stop = true; };
+      process.on('SIGTERM', onSignal);
+      try {
+        const r = await runSweepTask(dir, parseCount(o.index, '--index')!, { retryFailed: o.retryFailed, log: (s) => process.stderr.write(s + '\n'), shouldStop: () => stop });
+        process.stdout.write(`run ${r.index} (${r.id}): ${r.skipped ? `already ${r.state}` : r.state}: ${r.message.split('\n')[0]}\n`);
+        exitCode = r.state === 'done' ? 0 : r.state === 'failed' ? 1 : 130;
+      } finally {
+        process.off('SIGTERM', onSignal);
+      }
+    });
+  sweep
+    .command('status')
+    .argument('<dir>', 'a planned sweep directory')
+    .description('how many runs are done, failed, running, interrupted and pending (read from the run directories)')
+    .option('--json', 'every run with its state, as JSON')
+    .option('--list <state>', 'list the runs in one state')
+    .action((dir: string, o: { json?: boolean; list?: string }) => {
+      const s = sweepStatus(dir);
+      if (o.json) {
+        process.stdout.write(JSON.stringify({ counts: s.counts, runs: s.runs.map((r) => ({ index: r.index, id: r.id, label: r.label, state: r.state, message: r.message })) }, null, 2) + '\n');
+        return;
+      }
+      const total = s.runs.length;
+      process.stdout.write(`${dir}: ${total} runs — ${Object.entries(s.counts).map(([k, v]) => `${v} ${k}`).join(', ')}\n`);
+      if (o.list) {
+        if (!(o.list in s.counts)) throw new UsageError(`--list ${o.list}: one of ${Object.keys(s.counts).join(', ')}`);
+        for (const r of s.runs) if (r.state === o.list) process.stdout.write(`  ${String(r.index).padStart(5)}  ${r.id}  ${r.label}${r.message ? `  — ${r.message.split('\n')[0]}` : ''}\n`);
+      } else {
+        for (const r of s.runs) if (r.state === 'failed') process.stdout.write(`  failed ${r.index} (${r.label}): ${(r.message ?? '').split('\n')[0]}\n`);
+      }
+    });
+  sweep
+    .command('slurm')
+    .argument('<dir>', 'a planned sweep directory')
+    .description('write a Slurm job array (one task per unfinished run) to DIR/slurm/array.sbatch, and submit it with --submit')
+    .option('--partition <p>', 'Slurm partition')
+    .option('--time <t>', 'wall time per run (minutes, HH:MM:SS or D-HH:MM:SS)')
+    .option('--mem <m>', 'memory per run (e.g. 2G)')
+    .option('--max-parallel <k>', 'most runs at once')
+    .option('--all', 'every run, finished or not')
+    .option('--retry-failed', 'include failed runs and run them again')
+    .option('--launcher <command>', 'how compute nodes start placode (default: this node and placode by absolute path)')
+    .option('--submit', 'submit with sbatch')
+    .action((dir: string, o: { partition?: string; time?: string; mem?: string; maxParallel?: string; all?: boolean; retryFailed?: boolean; launcher?: string; submit?: boolean }) => {
+      const r = writeSlurmArray(dir, { ...o, maxParallel: parseCount(o.maxParallel, '--max-parallel', 1) });
+      process.stdout.write(`wrote ${r.script} (${r.indices.length} array tasks)\n`);
+      if (r.jobId) process.stdout.write(`submitted job ${r.jobId}; follow it with: placode sweep status ${dir}\n`);
+      else process.stdout.write(`submit it with: sbatch ${r.script}\n`);
+    });
+  sweep
+    .command('collect')
+    .argument('<dir>', 'a planned sweep directory')
+    .description('gather every run\'s final metrics and stability summary into one CSV, and a contact sheet of the patterns on the parameter grid')
+    .option('--csv <file>', 'CSV file (default DIR/sweep.csv)')
+    .option('--sheet <file>', 'contact sheet PNG (default DIR/sheet.png)')
+    .option('--no-sheet', 'no contact sheet')
+    .option('--species <name>', 'species painted on the sheet (default: the analysed one)')
+    .option('--colormap <name>', 'colormap', 'viridis')
+    .option('--range <r>', 'colour range min:max (default: over every run shown)')
+    .option('--view <v>', `view preset (${Object.keys(VIEW_PRESETS).join(', ')})`, 'iso')
+    .option('--thumbnail <px>', 'width of each thumbnail', '220')
+    .action((dir: string, o: { csv?: string; sheet?: string | boolean; species?: string; colormap: string; range?: string; view: string; thumbnail: string }) => {
+      const r = collectSweep(dir, { ...o, sheet: o.sheet === true ? undefined : o.sheet, thumbnail: parseCount(o.thumbnail, '--thumbnail', 40) });
+      process.stdout.write(`wrote ${r.csv} (${r.rows} runs${r.missing ? `, ${r.missing} not finished` : ''})\n`);
+      if (r.sheet) process.stdout.write(`wrote ${r.sheet}\n`);
     });
 
   try {

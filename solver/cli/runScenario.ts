@@ -36,6 +36,8 @@ export interface RunOptions {
   progress?: 'auto' | 'bar' | 'lines' | 'none';
   /** stop as if interrupted once this many steps have been taken in this call (tests, scripted pauses) */
   interruptAfterSteps?: number;
+  /** asked between chunks of steps: true stops the run as if interrupted (state saved, resumable) */
+  shouldStop?: () => boolean;
   /** the command line, for the record */
   command?: string[];
   /** where progress and messages go (default: stderr) */
@@ -436,6 +438,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
           break;
         }
       }
+      if (options.shouldStop?.()) interrupted = true;
       steppingSeconds += (performance.now() - chunkStart) / 1000;
       progress.update(step * dt, (step - startStep) / Math.max(1e-9, (performance.now() - started) / 1000));
       await new Promise((res) => setImmediate(res));

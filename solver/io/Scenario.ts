@@ -1,3 +1,5 @@
+import { SWEEP_SECTION_SCHEMA, type SweepSpec } from './Sweep.ts';
+
 /**
  * A scenario file, as written by the user (JSON or YAML). Everything except
  * `mesh`, `kinetics` and `time.end` has a default; `resolveScenario` fills
@@ -17,6 +19,8 @@ export interface Scenario {
   output?: OutputSpec;
   analysis?: AnalysisSpec;
   growth?: GrowthSpec;
+  /** values to vary in a parameter sweep (`placode sweep plan`); `placode run` runs the scenario as written */
+  sweep?: SweepSpec;
 }
 
 export interface GrowthSpec {
@@ -232,6 +236,7 @@ export const SCENARIO_SCHEMA = {
         tolerance: { type: 'number', exclusiveMinimum: 0, maximum: 0.1 },
       },
     },
+    sweep: SWEEP_SECTION_SCHEMA,
     growth: {
       type: 'object',
       additionalProperties: false,

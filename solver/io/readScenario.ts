@@ -1,4 +1,4 @@
-import { Ajv, type ErrorObject } from 'ajv';
+import { Ajv, type ErrorObject, type ValidateFunction } from 'ajv';
 import { LineCounter, parseDocument, isMap, isPair, isScalar, type Document, type Node } from 'yaml';
 import { SCENARIO_SCHEMA, type Scenario } from './Scenario.ts';
 import { ScenarioError, closestName, type ScenarioProblem } from './ScenarioError.ts';
@@ -103,10 +103,11 @@ function schemaProblems(errors: ErrorObject[], locate: ScenarioSource['locate'])
 }
 
 /**
- * Parse a scenario (YAML, or JSON — YAML's subset) and check it against the
- * schema. Throws a ScenarioError listing every problem with its path and line.
+ * Parse YAML (or JSON, YAML's subset) into a mapping and check it against a
+ * compiled schema. Throws a ScenarioError listing every problem with its path
+ * and line; `what` says what the file should be ("a scenario must be …").
  */
-export function parseScenario(text: string, file: string): ScenarioSource {
+export function parseCheckedYaml(text: string, file: string, check: ValidateFunction, what: string): { data: Record<string, unknown>; locate: ScenarioSource['locate'] } {
   const lines = new LineCounter();
   const doc = parseDocument(text, { lineCounter: lines, uniqueKeys: true });
   if (doc.errors.length) {
@@ -121,10 +122,24 @@ export function parseScenario(text: string, file: string): ScenarioSource {
   const data: unknown = doc.toJS();
   const locate = locator(doc, lines);
   if (data === null || typeof data !== 'object' || Array.isArray(data)) {
-    throw new ScenarioError(file, [{ path: '', message: `a scenario must be a mapping with mesh, kinetics and time, got ${describeValue(data)}` }]);
+    throw new ScenarioError(file, [{ path: '', message: `${what}, got ${describeValue(data)}` }]);
   }
-  if (!validate(data)) throw new ScenarioError(file, sortByLine(schemaProblems(validate.errors ?? [], locate)));
-  return { scenario: data as Scenario, locate };
+  if (!check(data)) throw new ScenarioError(file, sortByLine(schemaProblems(check.errors ?? [], locate)));
+  return { data: data as Record<string, unknown>, locate };
+}
+
+/** Compile a JSON schema with the same settings as the scenario schema. */
+export function compileSchema(schema: object): ValidateFunction {
+  return ajv.compile(schema);
+}
+
+/**
+ * Parse a scenario (YAML, or JSON — YAML's subset) and check it against the
+ * schema. Throws a ScenarioError listing every problem with its path and line.
+ */
+export function parseScenario(text: string, file: string): ScenarioSource {
+  const { data, locate } = parseCheckedYaml(text, file, validate, 'a scenario must be a mapping with mesh, kinetics and time');
+  return { scenario: data as unknown as Scenario, locate };
 }
 
 export function sortByLine(problems: ScenarioProblem[]): ScenarioProblem[] {

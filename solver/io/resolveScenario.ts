@@ -136,6 +136,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   const sc: Scenario = source.scenario;
   const problems = new Problems(source);
   const warnings: string[] = [];
+  if (sc.sweep) warnings.push(`the sweep section is not used by a single run: the scenario runs as written; expand the sweep with placode sweep plan ${file} --out DIR`);
 
   // ---- kinetics (checked before the mesh: cheap, and most mistakes are here)
   const k = sc.kinetics;

@@ -5,8 +5,9 @@ import { projectSurface, fitScale, niceTicks, tickLabel } from './surfaceView.ts
 import { drawText, textWidth, GLYPH_HEIGHT } from './bitmapFont.ts';
 
 export interface FigurePanel {
-  mesh: Mesh;
-  values: ArrayLike<number>;
+  /** the surface and its values; without them the cell is left blank (a sweep's unfinished run) */
+  mesh?: Mesh;
+  values?: ArrayLike<number>;
   /** caption under the panel (time, parameter value) */
   label?: string;
 }
@@ -38,7 +39,8 @@ const BAR_SPACE = 120;
 
 function layout(spec: FigureSpec, unit = 1): Layout {
   let lo = Infinity, hi = -Infinity;
-  for (const p of spec.panels) for (let i = 0; i < p.values.length; i++) { lo = Math.min(lo, p.values[i]); hi = Math.max(hi, p.values[i]); }
+  for (const p of spec.panels) if (p.values) for (let i = 0; i < p.values.length; i++) { lo = Math.min(lo, p.values[i]); hi = Math.max(hi, p.values[i]); }
+  if (!(lo <= hi)) lo = hi = 0;
   const range: [number, number] = spec.range ?? (hi > lo ? [lo, hi] : [lo - 0.5, lo + 0.5]);
   const u = unit;
   const top = (spec.title ? 40 : 12) * u;
@@ -48,8 +50,8 @@ function layout(spec: FigureSpec, unit = 1): Layout {
   const cw = (spec.width - (BAR_SPACE + 12) * u) / cols, ch = (spec.height - top - 12 * u) / rows;
   const cells = spec.panels.map((_, k) => ({ left: 12 * u + (k % cols) * cw, top: top + Math.floor(k / cols) * ch, width: cw, height: ch - labelSpace }));
   const barH = Math.min(spec.height - top - 60 * u, 320 * u);
-  const scale = Math.min(...spec.panels.map((p, k) => fitScale(p.mesh, spec.view, cells[k])));
-  return { scale, cells, bar: { left: spec.width - (BAR_SPACE - 20) * u, top: top + (spec.height - top - barH) / 2, width: 18 * u, height: barH }, titleY: 26 * u, range };
+  const scale = Math.min(...spec.panels.map((p, k) => (p.mesh ? fitScale(p.mesh, spec.view, cells[k]) : Infinity)));
+  return { scale: Number.isFinite(scale) ? scale : 1, cells, bar: { left: spec.width - (BAR_SPACE - 20) * u, top: top + (spec.height - top - barH) / 2, width: 18 * u, height: barH }, titleY: 26 * u, range };
 }
 
 const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;');
@@ -66,6 +68,8 @@ export function surfaceFigureSvg(spec: FigureSpec): string {
   if (spec.title) out.push(`<text class="title" x="${(spec.width - BAR_SPACE) / 2}" y="${L.titleY}" text-anchor="middle" font-size="17">${esc(spec.title)}</text>`);
   spec.panels.forEach((panel, k) => {
     const cell = L.cells[k];
+    if (panel.label) out.push(`<text class="label" x="${cell.left + cell.width / 2}" y="${cell.top + cell.height + 16}" text-anchor="middle">${esc(panel.label)}</text>`);
+    if (!panel.mesh || !panel.values) return;
     const v = projectSurface(panel.mesh, spec.view, cell, undefined, L.scale);
     const colors = colorizeField(panel.values, spec.colormap, L.range);
     const tri = panel.mesh.triangles;
@@ -81,7 +85,6 @@ export function surfaceFigureSvg(spec: FigureSpec): string {
       out.push(`<polygon points="${v.x[a].toFixed(1)},${v.y[a].toFixed(1)} ${v.x[b].toFixed(1)},${v.y[b].toFixed(1)} ${v.x[c].toFixed(1)},${v.y[c].toFixed(1)}" fill="${fill}" stroke="${fill}" stroke-width="0.4"/>`);
     }
     out.push('</g>');
-    if (panel.label) out.push(`<text class="label" x="${cell.left + cell.width / 2}" y="${cell.top + cell.height + 16}" text-anchor="middle">${esc(panel.label)}</text>`);
   });
   const lut = colormapTable(spec.colormap);
   const B = L.bar, steps = 64;
@@ -112,6 +115,7 @@ export function surfaceFigurePng(spec: FigureSpec, dpi = 150): Uint8Array {
   const rgb = new Float32Array(W * H * 3).fill(255);
   const zbuf = new Float64Array(W * H).fill(-Infinity);
   spec.panels.forEach((panel, k) => {
+    if (!panel.mesh || !panel.values) return;
     const v = projectSurface(panel.mesh, spec.view, L.cells[k], undefined, L.scale);
     const colors = colorizeField(panel.values, spec.colormap, L.range);
     const tri = panel.mesh.triangles;

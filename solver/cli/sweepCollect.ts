@@ -1,0 +1,145 @@
+import { existsSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { RUN_FILES } from '../io/runFiles.ts';
+import { writeFileAtomic } from '../io/meshFiles.ts';
+import { surfaceFigurePng, type FigurePanel } from '../io/surfaceFigure.ts';
+import { axisValues } from '../io/expandSweep.ts';
+import { VIEW_PRESETS } from '../io/surfaceView.ts';
+import { loadSnapshot, colormapOption, fixedRangeOption } from './runFrames.ts';
+import { readManifest } from './sweepPlan.ts';
+import { runStatus } from './sweepTask.ts';
+import { UsageError } from './UsageError.ts';
+
+export interface CollectOptions {
+  /** CSV file (default DIR/sweep.csv) */
+  csv?: string;
+  /** contact sheet PNG (default DIR/sheet.png); false: none */
+  sheet?: string | false;
+  species?: string;
+  colormap?: string;
+  /** colour range of the sheet: min:max (default: over every run shown) */
+  range?: string;
+  view?: string;
+  /** width of one thumbnail in pixels (default 220) */
+  thumbnail?: number;
+}
+
+/** A CSV field (RFC 4180): quoted when it holds a comma, quote or line break. */
+function csvField(v: unknown): string {
+  if (v === undefined || v === null) return '';
+  const s = typeof v === 'string' ? v : typeof v === 'number' || typeof v === 'boolean' ? String(v) : JSON.stringify(v);
+  return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+interface Record_ {
+  status?: string;
+  stop?: { reason: string; time: number; step: number };
+  performance?: { steppingSeconds: number };
+  analysis?: {
+    species: string;
+    prediction?: { band: [number, number] | null; fastest: { k2: number; rate: number } | null; predicted: { index: number; eigenvalue: number; rate: number; multiplicity: number } | null };
+    frames: { patches: { area: number }[]; dominantEigenvalue?: number; dominantFraction?: number }[];
+  };
+}
+
+/**
+ * `placode sweep collect`: one CSV row per run (its varied values, state,
+ * stop, timings, the linear-stability prediction on its surface, the final
+ * pattern measures and the final metrics row) and a contact sheet of every
+ * run's final pattern, laid out on the parameter grid (the last varied axis
+ * across, the others down) on one colour scale and one length scale.
+ */
+export function collectSweep(dirArg: string, o: CollectOptions = {}): { csv: string; sheet?: string; rows: number; missing: number } {
+  const { dir, entries, plan } = readManifest(dirArg);
+  const paths = Object.keys(plan.vary);
+  const metricHeaders: string[] = [];
+  const rows: Record<string, unknown>[] = [];
+  const panels: FigurePanel[] = [];
+  let species = o.species;
+  let missing = 0;
+  for (const e of entries) {
+    const status = runStatus(dir, e);
+    const run = join(dir, e.run);
+    const row: Record<string, unknown> = { index: e.index, id: e.id, state: status.state };
+    for (const p of paths) row[p] = e.values[p];
+    let record: Record_ | undefined;
+    try {
+      record = existsSync(join(run, RUN_FILES.record)) ? JSON.parse(readFileSync(join(run, RUN_FILES.record), 'utf8')) : undefined;
+    } catch {
+      record = undefined;
+    }
+    if (status.state === 'failed') row.message = status.message?.split('\n')[0];
+    if (record) {
+      row.stop = record.stop?.reason;
+      row.time = record.stop?.time;
+      row.steps = record.stop?.step;
+      row.seconds = record.performance?.steppingSeconds;
+      const pr = record.analysis?.prediction;
+      row.band_low = pr?.band?.[0];
+      row.band_high = pr?.band?.[1];
+      row.fastest_k2 = pr?.fastest?.k2;
+      row.fastest_rate = pr?.fastest?.rate;
+      row.predicted_mode = pr?.predicted?.index;
+      row.predicted_eigenvalue = pr?.predicted?.eigenvalue;
+      row.predicted_multiplicity = pr?.predicted?.multiplicity;
+      const last = record.analysis?.frames[record.analysis.frames.length - 1];
+      if (last) {
+        row.patches = last.patches.length;
+        row.mean_patch_area = last.patches.length ? last.patches.reduce((a, p) => a + p.area, 0) / last.patches.length : undefined;
+        row.dominant_eigenvalue = last.dominantEigenvalue;
+        row.dominant_fraction = last.dominantFraction;
+      }
+      species ??= record.analysis?.species;
+    }
+    const metricsFile = join(run, RUN_FILES.metrics);
+    if (existsSync(metricsFile)) {
+      const lines = readFileSync(metricsFile, 'utf8').trim().split('\n');
+      if (lines.length > 1) {
+        const header = lines[0].split(',');
+        const values = lines[lines.length - 1].split(',');
+        header.forEach((h, k) => {
+          const key = `final_${h}`;
+          if (!metricHeaders.includes(key)) metricHeaders.push(key);
+          row[key] = values[k] === '' ? undefined : Number(values[k]);
+        });
+      }
+    }
+    rows.push(row);
+    const finalFile = join(run, RUN_FILES.final);
+    if (o.sheet !== false && status.state === 'done' && existsSync(finalFile)) {
+      panels.push(loadPanel(finalFile, () => species, e.label));
+    } else {
+      if (status.state !== 'done') missing++;
+      panels.push({ label: `${e.label} (${status.state})` });
+    }
+  }
+  const columns = ['index', 'id', 'state', ...paths, 'message', 'stop', 'time', 'steps', 'seconds', 'band_low', 'band_high', 'fastest_k2', 'fastest_rate', 'predicted_mode', 'predicted_eigenvalue', 'predicted_multiplicity', 'patches', 'mean_patch_area', 'dominant_eigenvalue', 'dominant_fraction', ...metricHeaders];
+  const csv = o.csv ?? join(dir, 'sweep.csv');
+  writeFileAtomic(csv, [columns.map(csvField).join(','), ...rows.map((r) => columns.map((c) => csvField(r[c])).join(','))].join('\n') + '\n', true);
+  if (o.sheet === false) return { csv, rows: rows.length, missing };
+  const shown = panels.filter((p) => p.mesh);
+  if (!shown.length) return { csv, rows: rows.length, missing };
+  const colormap = colormapOption(o.colormap ?? 'viridis');
+  const range = o.range ? fixedRangeOption(o.range, 'min:max with max > min') : undefined;
+  const view = VIEW_PRESETS[o.view ?? 'iso'];
+  if (!view) throw new UsageError(`--view "${o.view}": one of ${Object.keys(VIEW_PRESETS).join(', ')}`);
+  // the grid: the last axis across (it varies fastest in the manifest), unless points were dropped or drawn at random
+  const lastAxis = plan.varying[plan.varying.length - 1];
+  const across = plan.design === 'grid' && !plan.duplicatesDropped && lastAxis ? axisValues(plan.vary[lastAxis]).length : Math.ceil(Math.sqrt(panels.length));
+  const columnsOnSheet = Math.max(1, Math.min(across, panels.length));
+  const rowsOnSheet = Math.ceil(panels.length / columnsOnSheet);
+  const thumb = o.thumbnail ?? 220;
+  const width = Math.min(8000, columnsOnSheet * thumb + 150);
+  const height = Math.min(8000, rowsOnSheet * (thumb + 24) + 60);
+  const sheet = o.sheet ?? join(dir, 'sheet.png');
+  writeFileAtomic(sheet, surfaceFigurePng({ panels, columns: columnsOnSheet, species: species ?? '', colormap, range, view, title: `${plan.name}: ${plan.varying.map((p) => p.split('.').pop()).join(' x ')}`, width, height }), true);
+  return { csv, sheet, rows: rows.length, missing };
+}
+
+function loadPanel(file: string, species: () => string | undefined, label: string): FigurePanel {
+  const snap = loadSnapshot(file);
+  const names = Object.keys(snap.fields);
+  const s = species() ?? names[names.length - 1];
+  if (!snap.fields[s]) throw new UsageError(`--species ${s}: ${file} holds ${names.join(', ')}`);
+  return { mesh: snap.mesh, values: snap.fields[s], label };
+}

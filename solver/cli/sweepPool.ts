@@ -1,0 +1,127 @@
+import { Worker } from 'node:worker_threads';
+import { availableParallelism } from 'node:os';
+import cliProgress from 'cli-progress';
+import { readManifest } from './sweepPlan.ts';
+import { runStatus, type TaskOutcome } from './sweepTask.ts';
+
+export interface PoolOptions {
+  /** worker threads (default: every core) */
+  workers?: number;
+  retryFailed?: boolean;
+  progress?: 'auto' | 'bar' | 'lines' | 'none';
+  log?: (line: string) => void;
+  /** stop (saving every running run's state) once this many runs have finished in this call: tests */
+  stopAfter?: number;
+}
+
+export interface PoolOutcome {
+  total: number;
+  /** finished before this call */
+  skipped: number;
+  done: number;
+  failed: { index: number; id: string; message: string }[];
+  /** left unfinished by an interruption */
+  unfinished: number;
+  interrupted: boolean;
+  seconds: number;
+  workers: number;
+}
+
+/**
+ * `placode sweep run`: run every unfinished entry of a sweep on a pool of
+ * worker threads, each running one scenario at a time (the solver is single
+ * threaded, so N workers use N cores). Finished runs are skipped, so an
+ * interrupted sweep resumes where it stopped; Ctrl-C (or SIGTERM) asks every
+ * worker to save its run's state, and a second Ctrl-C ends at once.
+ */
+export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): Promise<PoolOutcome> {
+  const { dir, entries } = readManifest(dirArg);
+  const log = options.log ?? ((s: string) => process.stderr.write(s + '\n'));
+  const t0 = performance.now();
+  const todo: number[] = [];
+  let skipped = 0;
+  for (const e of entries) {
+    const s = runStatus(dir, e).state;
+    if (s === 'done' || (s === 'failed' && !options.retryFailed)) skipped++;
+    else todo.push(e.index);
+  }
+  const workers = Math.max(1, Math.min(options.workers ?? availableParallelism(), todo.length || 1));
+  const outcome: PoolOutcome = { total: entries.length, skipped, done: 0, failed: [], unfinished: 0, interrupted: false, seconds: 0, workers };
+  if (!todo.length) {
+    log(`all ${entries.length} runs of ${dirArg} are finished (${skipped} skipped)${options.retryFailed ? '' : '; --retry-failed runs failed ones again'}`);
+    return outcome;
+  }
+  log(`running ${todo.length} of ${entries.length} runs on ${workers} worker thread${workers > 1 ? 's' : ''}${skipped ? ` (${skipped} already finished)` : ''}`);
+  const mode = options.progress === 'auto' || options.progress === undefined ? (process.stderr.isTTY ? 'bar' : 'lines') : options.progress;
+  const bar = mode === 'bar' ? new cliProgress.SingleBar({ format: 'sweep |{bar}| {value}/{total} runs  {failed} failed  ETA {eta_formatted}', hideCursor: true, stream: process.stderr }, cliProgress.Presets.shades_classic) : undefined;
+  bar?.start(todo.length, 0, { failed: 0 });
+  let finished = 0;
+  let stopping = false;
+  const pool: Worker[] = [];
+  const stopAll = () => {
+    if (stopping) return;
+    stopping = true;
+    outcome.interrupted = true;
+    for (const w of pool) w.postMessage({ type: 'stop' });
+  };
+  let signals = 0;
+  const onSignal = () => {
+    signals++;
+    if (signals > 1) {
+      for (const w of pool) void w.terminate();
+      process.exit(130);
+    }
+    log('stopping: every running run saves its state (Ctrl-C again to quit at once)');
+    stopAll();
+  };
+  process.on('SIGINT', onSignal);
+  process.on('SIGTERM', onSignal);
+  const record = (o: TaskOutcome | { index: number; id: string; state: 'failed'; message: string }) => {
+    finished++;
+    if (o.state === 'done') outcome.done++;
+    else if (o.state === 'failed') outcome.failed.push({ index: o.index, id: o.id, message: o.message });
+    else outcome.unfinished++;
+    bar?.update(finished, { failed: outcome.failed.length });
+    if (mode === 'lines') log(`  [${finished}/${todo.length}] run ${o.index} (${o.id}) ${o.state}${o.state === 'failed' ? `: ${o.message.split('\n')[0]}` : ''}`);
+    if (options.stopAfter !== undefined && finished >= options.stopAfter) stopAll();
+  };
+  try {
+    await new Promise<void>((resolveAll, rejectAll) => {
+      let next = 0;
+      let alive = workers;
+      const feed = (w: Worker) => {
+        if (stopping || next >= todo.length) {
+          void w.terminate();
+          return;
+        }
+        w.postMessage({ type: 'run', index: todo[next++] });
+      };
+      for (let k = 0; k < workers; k++) {
+        const w = new Worker(new URL('./sweepWorker.mjs', import.meta.url), { workerData: { dir, retryFailed: options.retryFailed ?? false } });
+        pool.push(w);
+        w.on('message', (m: { type: string; outcome?: TaskOutcome; index?: number; message?: string }) => {
+          if (m.type === 'ready') {
+            feed(w);
+          } else if (m.type === 'done') {
+            record(m.outcome!);
+            feed(w);
+          } else if (m.type === 'error') {
+            record({ index: m.index!, id: entries[m.index!].id, state: 'failed', message: m.message! });
+            feed(w);
+          }
+        });
+        w.on('error', (e) => rejectAll(new Error(`a sweep worker failed: ${e.message}`)));
+        w.on('exit', () => {
+          if (--alive === 0) resolveAll();
+        });
+      }
+    });
+  } finally {
+    process.off('SIGINT', onSignal);
+    process.off('SIGTERM', onSignal);
+    bar?.stop();
+  }
+  outcome.unfinished += todo.length - finished;
+  outcome.seconds = (performance.now() - t0) / 1000;
+  return outcome;
+}
