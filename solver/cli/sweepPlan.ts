@@ -165,7 +165,13 @@ export function planSweep(file: string, options: PlanOptions): { dir: string; en
   if (!entries.length) throw new UsageError(`${file}: the sweep has no points`);
   // resolve the first point in full: unknown parameters, bad formulas, missing meshes
   const first = join(scenariosDir, `${entries[0].id}.json`);
-  const resolved = resolveScenario(parseScenario(texts[0], first), first, nodeScenarioEnvironment(first));
+  let resolved;
+  try {
+    resolved = resolveScenario(parseScenario(texts[0], first), first, nodeScenarioEnvironment(first));
+  } catch (e) {
+    if (!(e instanceof ScenarioError)) throw e;
+    throw new ScenarioError(file, e.problems.map((p) => ({ path: `point 0 (${pointLabel(entries[0].values)}) ${p.path}`, message: p.message })));
+  }
   for (const w of resolved.warnings) log(`warning (point 0, ${entries[0].label}): ${w}`);
 
   mkdirSync(scenariosDir, { recursive: true });

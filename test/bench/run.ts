@@ -3,7 +3,7 @@
  * ~10k / 40k / 160k vertices, and the largest shapes the generators build.
  * Set BENCH_SIZES="32 64" (icosphere frequencies) to run a subset; BENCH_EIGEN=0
  * skips the eigen-solves, BENCH_RD=0 the reaction–diffusion stepping, BENCH_FEM=0
- * the assembly table. Machines are noisy: compare ratios within one run.
+ * the assembly table, BENCH_SWEEP=0 the local sweep pool. Machines are noisy: compare ratios within one run.
  */
 import { icosphere } from '../../meshes/shapes/icosphere.ts';
 import { SHAPES, buildShape } from '../../meshes/shapes/index.ts';
@@ -14,6 +14,7 @@ import { lumpedMass } from '../../solver/fem/lumpedMass.ts';
 import { vertexSparsityPattern } from '../../solver/fem/vertexSparsityPattern.ts';
 import { laplaceBeltramiEigenpairs } from '../../solver/fem/laplaceBeltramiEigenpairs.ts';
 import { reactionDiffusionBench } from './reactionDiffusion.ts';
+import { sweepPoolBench } from './sweepPool.ts';
 
 const sizes = (process.env.BENCH_SIZES ?? '32 64 128').split(/\s+/).filter(Boolean).map(Number);
 const eigen = process.env.BENCH_EIGEN !== '0';
@@ -67,3 +68,5 @@ if (process.env.BENCH_SHAPES !== '0') {
     console.log(`| ${name} | ${mesh.positions.length / 3} | ${ms(performance.now() - t0)} |`);
   }
 }
+
+if (process.env.BENCH_SWEEP !== '0') await sweepPoolBench();
