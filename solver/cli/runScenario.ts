@@ -5,7 +5,6 @@ import { parseScenario } from '../io/readScenario.ts';
 import { resolveScenario, type ResolvedScenario } from '../io/resolveScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { RUN_FILES, frameName, encodeFrame, stateMetrics, metricsHeader, metricsRow, encodeState, decodeState, type SavedState } from '../io/runFiles.ts';
-import { ReactionDiffusionStepper } from '../integrate/ReactionDiffusionStepper.ts';
 import { meshArea } from '../mesh/triangleAreas.ts';
 import { forgetMeshTopology, meshTopology } from '../mesh/meshTopology.ts';
 import { laplaceBeltramiEigenpairs, type Eigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
@@ -15,14 +14,12 @@ import { patchEvents } from '../analysis/patchEvents.ts';
 import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
 import { encodeSnapshot } from '../io/encodeSnapshot.ts';
 import { colorizeField } from '../io/colormap.ts';
-import { GrowthDriver, GrowthDegenerationError } from '../growth/GrowthDriver.ts';
-import { transferToRefinement } from '../growth/transferToRefinement.ts';
-import { refineMidpoint } from '../mesh/refineMidpoint.ts';
-import { prolongField, type Refinement } from '../mesh/Refinement.ts';
-import { withPositions, type Mesh } from '../mesh/Mesh.ts';
-import { edgeLengthStats } from '../mesh/edgeLengthStats.ts';
+import { GrowthDegenerationError } from '../growth/GrowthDriver.ts';
+import { prolongField } from '../mesh/Refinement.ts';
+import type { Mesh } from '../mesh/Mesh.ts';
 import { nodeScenarioEnvironment, meshChecksum } from './scenarioEnvironment.ts';
 import { UsageError } from './UsageError.ts';
+import { SurfaceSimulation } from '../growth/SurfaceSimulation.ts';
 import { VERSION } from './version.ts';
 
 export type StopReason = 'end' | 'steady-state' | 'blow-up' | 'interrupted' | 'degenerate';
@@ -106,6 +103,9 @@ function readScenarioText(file: string): string {
 /** Read, check and resolve a scenario file (meshes and previous runs found relative to it). */
 export function loadScenarioFile(file: string): { text: string; resolved: ResolvedScenario } {
   const text = readScenarioText(file);
+  if (/^scenario\s*:/m.test(text) && /^vary\s*:/m.test(text) && !/^kinetics\s*:/m.test(text)) {
+    throw new UsageError(`${file} is a sweep file (scenario: + vary:), not a scenario: expand it with placode sweep plan ${file} --out DIR`);
+  }
   return { text, resolved: resolveScenario(parseScenario(text, file), file, nodeScenarioEnvironment(file)) };
 }
 
@@ -207,45 +207,23 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   const checksum = record.mesh.checksum;
   const growing = r.growth !== undefined;
   // the surface: the start mesh, or (resuming a growing run) its refinements moved to the saved positions
-  let system = r.system;
-  let growthReference = r.mesh.positions;
-  const refinementList: Refinement[] = [];
-  const refineSystem = () => {
-    const rf = refineMidpoint(system.mesh);
-    refinementList.push(rf);
-    const prolong = (v: number | Float64Array) => (typeof v === 'number' ? v : prolongField(v, rf));
-    growthReference = prolongField(growthReference, rf, 3);
-    system = { mesh: rf.mesh, kinetics: system.kinetics, parameters: system.parameters.map(prolong), diffusion: system.diffusion.map(prolong) };
-    return rf;
-  };
-  if (saved?.growth) {
-    for (let k = 0; k < saved.growth.refinements; k++) refineSystem();
-    system = { ...system, mesh: withPositions(system.mesh, saved.growth.positions.slice()) };
-  }
-  const stepperOptions = { scheme: r.scheme, dt, solver: r.solver, tolerance: r.tolerance, growing };
-  let stepper = new ReactionDiffusionStepper(system, stepperOptions);
-  let n = system.mesh.positions.length / 3;
-  let driver: GrowthDriver | undefined;
-  if (r.growth) {
-    driver = new GrowthDriver(r.growth.makeLaw(growthReference, refinementList), n, r.growth.tolerance, saved?.step ?? 0);
-    record.growth ??= { description: r.growth.description, tolerance: r.growth.tolerance, updates: 0, refinements: [] };
-  }
+  const sim = new SurfaceSimulation(r, saved);
+  if (r.growth) record.growth ??= { description: r.growth.description, tolerance: r.growth.tolerance, updates: 0, refinements: [] };
   const area0 = meshArea(r.mesh);
-  let edgeAtRefinement = saved?.growth?.edgeAtRefinement ?? meanEdge(system.mesh);
   // pattern measures: vertex adjacency, and surface eigenpairs for the spectrum and the prediction
   let eig: Eigenpairs | undefined;
   const band = growing && r.analysis.modes > 0 ? scenarioBand(r) : null;
   const updateEigenpairs = (atStep: number) => {
-    const surface = stepper.surface;
+    const surface = sim.stepper.surface;
     const eigArea = meshArea(surface);
     // enough modes to reach the unstable band on the grown surface
     const wanted = Math.max(r.analysis.modes, modesToCoverBand(eigArea, band) ?? 0);
-    eig = laplaceBeltramiEigenpairs(surface, { count: Math.min(wanted, MAX_TRACKED_MODES, n - 1), mass: 'lumped' });
+    eig = laplaceBeltramiEigenpairs(surface, { count: Math.min(wanted, MAX_TRACKED_MODES, sim.vertexCount - 1), mass: 'lumped' });
     record.analysis.modesUpTo = eig.values[eig.values.length - 1];
-    const rep = stabilityReport({ ...r, mesh: surface, system }, { eigenpairs: eig });
+    const rep = stabilityReport({ ...r, mesh: surface, system: sim.system }, { eigenpairs: eig });
     const prediction = { state: rep.state, band: rep.turing?.band ?? null, fastest: rep.turing?.fastest ?? null, predicted: rep.predicted, notes: rep.notes };
     if (atStep === 0) record.analysis.prediction = prediction;
-    if (growing) (record.analysis.predictions ??= []).push({ time: atStep * dt, area: eigArea, vertices: n, predicted: rep.predicted });
+    if (growing) (record.analysis.predictions ??= []).push({ time: atStep * dt, area: eigArea, vertices: sim.vertexCount, predicted: rep.predicted });
   };
   if (r.analysis.modes > 0 && !growing) updateEigenpairs(saved?.step ?? 0);
   // the vertex adjacency the pattern measures walk, kept apart from the rest of the topology
@@ -253,19 +231,12 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     const topo = meshTopology(mesh);
     return { vertexNeighbourOffsets: topo.vertexNeighbourOffsets, vertexNeighbours: topo.vertexNeighbours };
   };
-  let neighbours = adjacency(system.mesh);
+  let neighbours = adjacency(sim.system.mesh);
   if (!growing) forgetMeshTopology(r.mesh); // the stepper holds all it needs; free edges and the CSR pattern
   const measuredIndex = r.species.indexOf(r.analysis.species);
-  const measure = (state: Float64Array) => measurePattern(stepper.surface, speciesField(state, nS, measuredIndex), stepper.mass, neighbours, r.analysis.threshold, eig);
+  const measure = (state: Float64Array) => measurePattern(sim.stepper.surface, speciesField(state, nS, measuredIndex), sim.stepper.mass, neighbours, r.analysis.threshold, eig);
   let previousLabels: Int32Array | undefined = saved ? measure(saved.state).labels : undefined;
-  stepper.setState(saved ? saved.state : r.initial);
   let step = saved?.step ?? 0;
-  if (driver) {
-    if (saved?.growth) {
-      driver.lastUpdate = saved.growth.lastUpdate;
-      driver.nextUpdate = saved.growth.nextUpdate;
-    } else driver.start(stepper, step, dt);
-  }
   let nextFrame = saved?.nextFrame ?? 0;
   let reference: Float64Array | undefined = r.steadyState !== undefined ? new Float64Array(saved?.reference ?? r.initial) : undefined;
   let referenceStep = saved ? Math.floor(saved.step / every) * every : 0;
@@ -278,8 +249,7 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     writeFileAtomic(join(out, RUN_FILES.record), JSON.stringify(record, null, 2) + '\n', true);
   };
   const saveState = (state: Float64Array, atStep: number) => {
-    const growth = driver ? { refinements: refinementList.length, lastUpdate: driver.lastUpdate, nextUpdate: driver.nextUpdate, edgeAtRefinement, positions: stepper.surface.positions } : undefined;
-    writeFileAtomic(join(out, RUN_FILES.state), encodeState({ step: atStep, time: atStep * dt, nextFrame, species: [...r.species], vertexCount: n, meshChecksum: checksum, dt, state, reference, growth }), true);
+    writeFileAtomic(join(out, RUN_FILES.state), encodeState({ step: atStep, time: atStep * dt, nextFrame, species: [...r.species], vertexCount: sim.vertexCount, meshChecksum: checksum, dt, state, reference, growth: sim.savedGrowth() }), true);
   };
   const comments = (atStep: number) => [`placode ${VERSION} run ${r.name}`, `time ${atStep * dt} step ${atStep}`];
   const style = { colour: r.output.colour, colormap: r.output.colormap, range: r.output.range };
@@ -301,13 +271,13 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
       });
       if (previousLabels) for (const e of patchEvents(previousLabels, pattern.labels)) a.events.push({ time: atStep * dt, ...e });
       previousLabels = pattern.labels;
-      const area = meshArea(stepper.surface);
-      metricRows.push(metricsRow(atStep * dt, atStep, stateMetrics(state, nS, stepper.mass), [count, pattern.dominant?.eigenvalue, ...(growing ? [area, Math.sqrt(area / area0), n] : [])]));
+      const area = meshArea(sim.stepper.surface);
+      metricRows.push(metricsRow(atStep * dt, atStep, stateMetrics(state, nS, sim.stepper.mass), [count, pattern.dominant?.eigenvalue, ...(growing ? [area, Math.sqrt(area / area0), sim.vertexCount] : [])]));
     }
     writeFileAtomic(join(out, RUN_FILES.metrics), [metricsHeader(r.species, growing), ...metricRows].join('\n') + '\n', true);
     if (frame && r.output.frames) {
       const name = frameName(nextFrame);
-      writeFileAtomic(join(out, RUN_FILES.frames, name), encodeFrame(stepper.surface, r.species, state, style, comments(atStep)), true);
+      writeFileAtomic(join(out, RUN_FILES.frames, name), encodeFrame(sim.stepper.surface, r.species, state, style, comments(atStep)), true);
       record.frames.push({ file: `${RUN_FILES.frames}/${name}`, time: atStep * dt, step: atStep });
     }
     if (frame) nextFrame++;
@@ -321,14 +291,14 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
     const fields = Object.fromEntries(r.species.map((s, i) => [s, speciesField(state, nS, i)]));
     const colors = colorizeField(fields[r.output.colour], r.output.colormap, r.output.range === 'frame' ? undefined : r.output.range);
     for (const format of r.output.formats) {
-      const bytes = await encodeSnapshot(format, stepper.surface, fields, colors, comments(atStep).join('; '));
+      const bytes = await encodeSnapshot(format, sim.stepper.surface, fields, colors, comments(atStep).join('; '));
       writeFileAtomic(name === 'final' ? join(out, `final.${format}`) : join(out, RUN_FILES.frames, `${name}.${format}`), bytes, true);
     }
     outputSeconds += (performance.now() - tw) / 1000;
   };
   const finish = (reason: StopReason, atStep: number, message: string, state: Float64Array): RunOutcome => {
     const tw = performance.now();
-    if (reason !== 'interrupted') writeFileAtomic(join(out, RUN_FILES.final), encodeFrame(stepper.surface, r.species, state, style, comments(atStep)), true);
+    if (reason !== 'interrupted') writeFileAtomic(join(out, RUN_FILES.final), encodeFrame(sim.stepper.surface, r.species, state, style, comments(atStep)), true);
     outputSeconds += (performance.now() - tw) / 1000;
     record.status = reason;
     record.stop = { reason, time: atStep * dt, step: atStep, message };
@@ -341,9 +311,9 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
       steps: allSteps,
       steppingSeconds: allSeconds,
       stepsPerSecond: allSteps / Math.max(allSeconds, 1e-9),
-      vertexStepsPerSecond: (allSteps * n) / Math.max(allSeconds, 1e-9),
-      solverIterationsPerStep: r.scheme === 'imex' && r.solver === 'cg' ? stepper.totalIterations / Math.max(1, stepper.stepsTaken) : undefined,
-      stepperBytesPerVertex: stepper.bytes() / n,
+      vertexStepsPerSecond: (allSteps * sim.vertexCount) / Math.max(allSeconds, 1e-9),
+      solverIterationsPerStep: r.scheme === 'imex' && r.solver === 'cg' ? sim.stepper.totalIterations / Math.max(1, sim.stepper.stepsTaken) : undefined,
+      stepperBytesPerVertex: sim.stepper.bytes() / sim.vertexCount,
     };
     writeRecord();
     progress.stop();
@@ -360,40 +330,26 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   process.on('SIGTERM', onSignal);
   for (const w of r.warnings) log(`warning: ${w}`);
   for (const note of r.meshNotes) log(`mesh: ${note}`);
-  log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${n} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''} → ${out}`);
+  log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${sim.vertexCount} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''} → ${out}`);
   /** Move the surface to `step` if due (or forced), refining when its elements have grown; an outcome if it folded. */
   const growTo = (step: number, force: boolean, chunkStart: number): RunOutcome | undefined => {
     try {
-      if (driver!.maybeUpdate(stepper, step, dt, force)) {
-        record.growth!.updates++;
-        const rule = r.growth!.refine;
-        const edge = rule ? meanEdge(stepper.surface) : 0;
-        if (rule && (edge >= rule.edgeGrowth * edgeAtRefinement || edge > rule.maxEdge) && 4 * n <= rule.maxVertices) {
-          const before = n;
-          const state = stepper.state;
-          const oldMass = stepper.mass;
-          system = { ...system, mesh: stepper.surface };
-          const rf = refineSystem();
-          const next = new ReactionDiffusionStepper(system, stepperOptions);
-          next.setState(transferToRefinement(state, oldMass, rf, next.mass, nS));
-          stepper = next;
-          n = system.mesh.positions.length / 3;
-          driver = new GrowthDriver(r.growth!.makeLaw(growthReference, refinementList), n, r.growth!.tolerance, step);
-          driver.start(stepper, step, dt);
-          edgeAtRefinement = meanEdge(stepper.surface);
-          neighbours = adjacency(stepper.surface);
-          previousLabels = undefined;
-          if (reference) reference = prolongField(reference, rf, nS);
-          record.growth!.refinements.push({ time: step * dt, step, from: before, to: n });
-          log(`  refined at t=${(step * dt).toPrecision(6)}: ${before} → ${n} vertices`);
-          if (r.analysis.modes > 0) updateEigenpairs(step);
-        }
+      const before = sim.vertexCount;
+      const { moved, refinement } = sim.advanceGeometry(step, force);
+      if (moved) record.growth!.updates++;
+      if (refinement) {
+        neighbours = adjacency(sim.stepper.surface);
+        previousLabels = undefined;
+        if (reference) reference = prolongField(reference, refinement, nS);
+        record.growth!.refinements.push({ time: step * dt, step, from: before, to: sim.vertexCount });
+        log(`  refined at t=${(step * dt).toPrecision(6)}: ${before} → ${sim.vertexCount} vertices`);
+        if (r.analysis.modes > 0) updateEigenpairs(step);
       }
     } catch (e) {
       if (!(e instanceof GrowthDegenerationError)) throw e;
       steppingSeconds += (performance.now() - chunkStart) / 1000;
-      emit(stepper.state, step, false);
-      return finish('degenerate', step, `${e.message}. The last state before it is in ${RUN_FILES.final} and ${RUN_FILES.state}.`, stepper.state);
+      emit(sim.stepper.state, step, false);
+      return finish('degenerate', step, `${e.message}. The last state before it is in ${RUN_FILES.final} and ${RUN_FILES.state}.`, sim.stepper.state);
     }
     return undefined;
   };
@@ -402,8 +358,8 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
   let steppingSeconds = 0;
   try {
     if (!saved) {
-      emit(stepper.state, 0, true);
-      await writeFormats(stepper.state, 0, frameName(0).replace('.ply', ''));
+      emit(sim.stepper.state, 0, true);
+      await writeFormats(sim.stepper.state, 0, frameName(0).replace('.ply', ''));
     }
     writeRecord();
     const startStep = step;
@@ -412,19 +368,19 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
       const target = Math.min(lastStep, (Math.floor(step / every) + 1) * every);
       const chunkStart = performance.now();
       while (step < target) {
-        if (driver) {
+        if (sim.driver) {
           const stopped = growTo(step, false, chunkStart);
           if (stopped) return stopped;
         }
-        const ok = stepper.step(step * dt);
+        const ok = sim.stepper.step(step * dt);
         step++;
         if (!ok) {
           steppingSeconds += (performance.now() - chunkStart) / 1000;
-          const bad = stepper.state;
+          const bad = sim.stepper.state;
           let at = 0;
           while (at < bad.length && Number.isFinite(bad[at])) at++;
           const s = at % nS, vertex = Math.floor(at / nS);
-          const good = stepper.previous;
+          const good = sim.stepper.previous;
           emit(good, step - 1, false);
           return finish('blow-up', step - 1,
             `blow-up at t=${(step * dt).toPrecision(6)} (step ${step}): ${r.species[s]} became ${bad[at]} at vertex ${vertex}. ` +
@@ -444,30 +400,30 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
       await new Promise((res) => setImmediate(res));
       const atOutput = step % every === 0 || step === lastStep;
       if (atOutput) {
-        if (driver) {
+        if (sim.driver) {
           const stopped = growTo(step, true, performance.now());
           if (stopped) return stopped;
         }
-        emit(stepper.state, step, true);
-        await writeFormats(stepper.state, step, frameName(nextFrame - 1).replace('.ply', ''));
+        emit(sim.stepper.state, step, true);
+        await writeFormats(sim.stepper.state, step, frameName(nextFrame - 1).replace('.ply', ''));
         if (reference && r.steadyState !== undefined) {
-          const change = relativeChange(stepper.state, reference, (step - referenceStep) * dt);
-          reference.set(stepper.state);
+          const change = relativeChange(sim.stepper.state, reference, (step - referenceStep) * dt);
+          reference.set(sim.stepper.state);
           referenceStep = step;
           if (change < r.steadyState) {
             record.analysis.timeToSteadyState = step * dt;
-            await writeFormats(stepper.state, step, 'final');
-            return finish('steady-state', step, `steady state at t=${(step * dt).toPrecision(6)}: relative change ${change.toExponential(2)} per unit time < ${r.steadyState}. Outputs in ${out}`, stepper.state);
+            await writeFormats(sim.stepper.state, step, 'final');
+            return finish('steady-state', step, `steady state at t=${(step * dt).toPrecision(6)}: relative change ${change.toExponential(2)} per unit time < ${r.steadyState}. Outputs in ${out}`, sim.stepper.state);
           }
         }
       }
       if (interrupted) {
-        if (!atOutput) saveState(stepper.state, step);
-        return finish('interrupted', step, `interrupted at t=${(step * dt).toPrecision(6)} (step ${step} of ${lastStep}); continue with: placode run --resume ${out}`, stepper.state);
+        if (!atOutput) saveState(sim.stepper.state, step);
+        return finish('interrupted', step, `interrupted at t=${(step * dt).toPrecision(6)} (step ${step} of ${lastStep}); continue with: placode run --resume ${out}`, sim.stepper.state);
       }
     }
-    await writeFormats(stepper.state, step, 'final');
-    return finish('end', step, `finished at t=${(step * dt).toPrecision(6)} after ${step} steps. Outputs in ${out}`, stepper.state);
+    await writeFormats(sim.stepper.state, step, 'final');
+    return finish('end', step, `finished at t=${(step * dt).toPrecision(6)} after ${step} steps. Outputs in ${out}`, sim.stepper.state);
   } finally {
     process.off('SIGINT', onSignal);
     process.off('SIGTERM', onSignal);
@@ -477,10 +433,6 @@ async function execute(out: string, r: ResolvedScenario, record: RunRecord, save
 
 /** The most eigenpairs a growing run computes to follow its predicted mode. */
 const MAX_TRACKED_MODES = 300;
-
-function meanEdge(mesh: Mesh): number {
-  return edgeLengthStats(mesh).mean;
-}
 
 /** max_i |U − U_ref| / (Δt · max(max_i |U|, 1e-30)). */
 function relativeChange(state: Float64Array, reference: Float64Array, interval: number): number {

@@ -106,6 +106,16 @@ describe('placode sweep plan', () => {
     expect(check.out).toMatch(/sweep section is not used by a single run/);
   });
 
+  it('the shipped example sweep plans its 3 × 4 grid, and run refuses it as a scenario', async () => {
+    const example = join(__dirname, '..', '..', 'meshes', 'examples', 'sphere-spots-sweep.yaml');
+    const p = planSweep(example, { out: join(dir, 'example'), log: () => {} });
+    expect(p.entries.length).toBe(12);
+    expect(p.plan.varying).toEqual(['kinetics.parameters.F', 'kinetics.parameters.k']);
+    const r = await run('run', example, '--check');
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(/is a sweep file .* placode sweep plan/);
+  });
+
   it('mistakes are found before any run starts, each with its place', async () => {
     write('base.yaml', BASE);
     const cases: [string, RegExp][] = [
