@@ -22,6 +22,9 @@ import { runSweepTask, sweepStatus } from './sweepTask.ts';
 import { runSweepLocal } from './sweepPool.ts';
 import { writeSlurmArray } from './sweepSlurm.ts';
 import { collectSweep } from './sweepCollect.ts';
+import { startViewServer } from './viewServer.ts';
+import { ensureViewerBuilt } from './viewerBuild.ts';
+import { existsSync, statSync } from 'node:fs';
 
 const collect = (value: string, previous: string[] = []) => previous.concat([value]);
 
@@ -274,6 +277,25 @@ export async function main(argv: string[]): Promise<number> {
         outcome = await runScenarioFile(file, { out: o.out, force: o.force, progress: o.progress, command: argv });
       }
       exitCode = outcome.reason === 'blow-up' || outcome.reason === 'degenerate' ? 3 : outcome.reason === 'interrupted' ? 130 : 0;
+    });
+
+  program
+    .command('view')
+    .argument('[rundir]', 'a run directory to open on the timeline')
+    .description('the viewer: a web page on 127.0.0.1 to set up, run, brush, analyse and export in the browser')
+    .option('--port <n>', 'port on 127.0.0.1 (0: any free one)', '5178')
+    .option('--rebuild', 'build the page again even if it looks current')
+    .action(async (rundir: string | undefined, o: { port: string; rebuild?: boolean }) => {
+      if (rundir && (!existsSync(rundir) || !statSync(rundir).isDirectory())) throw new UsageError(`${rundir} is not a directory: give a run directory written by placode run`);
+      if (rundir && !existsSync(`${rundir}/record.json`)) throw new UsageError(`${rundir} is not a run directory (no record.json)`);
+      const appDir = await ensureViewerBuilt((s) => process.stderr.write(s + '\n'), o.rebuild);
+      const { url } = await startViewServer({ appDir, runDir: rundir, port: parseCount(o.port, '--port') });
+      process.stdout.write(`Placode viewer at ${url}${rundir ? ` (run ${rundir})` : ''} — open it in a browser; Ctrl-C stops it\n`);
+      await new Promise<void>((done) => {
+        const stop = () => { process.off('SIGINT', stop); process.off('SIGTERM', stop); done(); };
+        process.on('SIGINT', stop);
+        process.on('SIGTERM', stop);
+      });
     });
 
   const sweep = program

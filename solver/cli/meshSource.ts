@@ -2,12 +2,7 @@ import { existsSync } from 'node:fs';
 import { SHAPES, buildShape } from '../../meshes/shapes/index.ts';
 import type { Mesh } from '../mesh/Mesh.ts';
 import { loadMeshFile } from '../io/meshFiles.ts';
-import { weldVertices } from '../mesh/weldVertices.ts';
-import { orientTriangles } from '../mesh/orientTriangles.ts';
-import { dropUnreferencedVertices } from '../mesh/dropUnreferencedVertices.ts';
-import { refineMidpoint } from '../mesh/refineMidpoint.ts';
-import { loopSubdivide } from '../mesh/loopSubdivide.ts';
-import { prolongField } from '../mesh/Refinement.ts';
+import { repairMesh as repairMeshPure, type MeshRepairs } from '../mesh/repairMesh.ts';
 import { validateMesh } from '../mesh/validateMesh.ts';
 import { UsageError } from './UsageError.ts';
 
@@ -89,71 +84,13 @@ export function resolveMesh(spec: string, o: MeshSourceOptions): ResolvedMesh {
   return { mesh, source, vertexData, notes };
 }
 
-export interface MeshRepairs {
-  /** weld vertices closer than this (0: identical only); undefined: no welding */
-  weld?: number;
-  dropUnreferenced?: boolean;
-  fixOrientation?: boolean;
-  refine?: number;
-  loop?: number;
-}
-
-/**
- * Apply repairs and refinements in a fixed order (weld, drop unreferenced,
- * orient, midpoint refinement, Loop subdivision), carrying per-vertex data
- * along. Errors are UsageErrors that say what to repair first.
- */
-export function repairMesh(input: Mesh, data: Record<string, Float64Array>, o: MeshRepairs): { mesh: Mesh; vertexData: Record<string, Float64Array>; notes: string[] } {
-  let mesh = input;
-  let vertexData = data;
-  const notes: string[] = [];
-  const remap = (map: Uint32Array, n: number) => {
-    const out: Record<string, Float64Array> = {};
-    for (const [k, v] of Object.entries(vertexData)) {
-      const d = new Float64Array(n);
-      for (let i = 0; i < map.length; i++) if (map[i] < n) d[map[i]] = v[i];
-      out[k] = d;
-    }
-    vertexData = out;
-  };
-  if (o.weld !== undefined) {
-    const w = weldVertices(mesh, o.weld);
-    mesh = w.mesh;
-    remap(w.vertexMap, mesh.positions.length / 3);
-    notes.push(`welded ${w.mergedVertices} vertices (tolerance ${o.weld})${w.removedTriangles ? `, removed ${w.removedTriangles} collapsed triangles` : ''}`);
+/** `repairMesh` with its errors as usage errors (they say which repair to try first). */
+export function repairMesh(input: Mesh, data: Record<string, Float64Array>, o: MeshRepairs): ReturnType<typeof repairMeshPure> {
+  try {
+    return repairMeshPure(input, data, o);
+  } catch (e) {
+    throw new UsageError((e as Error).message);
   }
-  if (o.dropUnreferenced) {
-    const d = dropUnreferencedVertices(mesh);
-    mesh = d.mesh;
-    remap(d.vertexMap, mesh.positions.length / 3);
-    notes.push(`dropped ${d.dropped} unreferenced vertices`);
-  }
-  if (o.fixOrientation) {
-    const pre = validateMesh(mesh);
-    if (pre.errors.length > 0) throw new UsageError(`cannot reorient a mesh with errors: ${pre.errors[0].message}`);
-    const r = orientTriangles(mesh);
-    mesh = r.mesh;
-    notes.push(r.orientable ? `reoriented ${r.flipped} triangles` : 'the surface is not orientable; orientation left partly inconsistent');
-  }
-  const refine = o.refine ?? 0;
-  const loop = o.loop ?? 0;
-  if (refine + loop > 0) {
-    const pre = validateMesh(mesh);
-    if (pre.errors.length > 0) throw new UsageError(`cannot refine a mesh with errors: ${pre.errors[0].message}`);
-  }
-  for (let i = 0; i < refine; i++) {
-    const r = refineMidpoint(mesh);
-    mesh = r.mesh;
-    vertexData = Object.fromEntries(Object.entries(vertexData).map(([k, v]) => [k, prolongField(v, r)]));
-  }
-  for (let i = 0; i < loop; i++) {
-    const r = loopSubdivide(mesh);
-    mesh = r.mesh;
-    vertexData = Object.fromEntries(Object.entries(vertexData).map(([k, v]) => [k, prolongField(v, r)]));
-  }
-  if (refine) notes.push(`midpoint-refined ${refine} times`);
-  if (loop) notes.push(`Loop-subdivided ${loop} times`);
-  return { mesh, vertexData, notes };
 }
 
 /** Refuse meshes the FEM cannot use, listing every error and the repair to try. */

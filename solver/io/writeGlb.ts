@@ -1,4 +1,4 @@
-import { Document, NodeIO } from '@gltf-transform/core';
+import { Document, WebIO } from '@gltf-transform/core';
 import type { Mesh } from '../mesh/Mesh.ts';
 import { vertexNormals } from '../mesh/vertexNormals.ts';
 
@@ -48,7 +48,7 @@ export async function writeGlb(mesh: Mesh, options: { colors?: Uint8Array; prope
   const node = doc.createNode(options.name ?? 'surface').setMesh(gltfMesh);
   doc.createScene('scene').addChild(node);
   doc.getRoot().getAsset().generator = 'placode';
-  return new NodeIO().writeBinary(doc);
+  return new WebIO().writeBinary(doc);
 }
 
 /**
@@ -93,5 +93,5 @@ export async function writeAnimatedGlb(frames: { positions: Float64Array; colors
   const channel = doc.createAnimationChannel().setTargetNode(node).setTargetPath('weights').setSampler(sampler);
   doc.createAnimation('growth').addSampler(sampler).addChannel(channel);
   doc.getRoot().getAsset().generator = 'placode';
-  return new NodeIO().writeBinary(doc);
+  return new WebIO().writeBinary(doc);
 }

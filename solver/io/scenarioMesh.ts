@@ -1,0 +1,50 @@
+import { SHAPES, buildShape } from '../../meshes/shapes/index.ts';
+import type { Mesh } from '../mesh/Mesh.ts';
+import type { MeshSpec } from './Scenario.ts';
+import type { LoadedMesh } from './resolveScenario.ts';
+import { repairMesh } from '../mesh/repairMesh.ts';
+import { validateMesh } from '../mesh/validateMesh.ts';
+
+/** A mesh file's contents, however the environment reads it (a path in Node, an opened file in the browser). */
+export interface MeshFileContents {
+  mesh: Mesh;
+  vertexData: Record<string, Float64Array>;
+  notes: string[];
+  /** what the record says the mesh came from */
+  source: Record<string, unknown>;
+}
+
+/**
+ * The mesh of a scenario: a built-in shape, or a file read by `readFile`;
+ * then the scenario's repairs and refinements; refused (with every error)
+ * if surface finite elements cannot use it. Shared by the command line and
+ * the viewer, so both build exactly the same mesh from the same scenario.
+ */
+export function scenarioMesh(spec: MeshSpec, readFile: (file: string) => MeshFileContents): LoadedMesh {
+  let mesh: Mesh;
+  let vertexData: Record<string, Float64Array> = {};
+  const notes: string[] = [];
+  let source: Record<string, unknown>;
+  if (spec.shape !== undefined) {
+    if (!(spec.shape in SHAPES)) throw new Error(`unknown shape "${spec.shape}"; built-in shapes: ${Object.keys(SHAPES).join(', ')}`);
+    const built = buildShape({ shape: spec.shape, params: spec.params, vertices: spec.vertices });
+    mesh = built.mesh;
+    source = { shape: spec.shape, params: built.params, vertices: built.vertices };
+  } else {
+    if (spec.params || spec.vertices !== undefined) throw new Error('params and vertices apply to built-in shapes, not to mesh files (use refine or loop to refine a file)');
+    const read = readFile(spec.file!);
+    mesh = read.mesh;
+    vertexData = read.vertexData;
+    notes.push(...read.notes);
+    source = read.source;
+  }
+  const weld = spec.weld === undefined || spec.weld === false ? undefined : spec.weld === true ? 0 : spec.weld;
+  const repaired = repairMesh(mesh, vertexData, { weld, dropUnreferenced: spec.dropUnreferenced, fixOrientation: spec.fixOrientation, refine: spec.refine, loop: spec.loop });
+  const report = validateMesh(repaired.mesh);
+  if (report.errors.length) {
+    throw new Error(`the mesh cannot be used for surface finite elements: ${report.errors.map((e) => e.message).join('; ')}`);
+  }
+  notes.push(...repaired.notes, ...report.warnings.map((w) => w.message));
+  for (const k of ['weld', 'fixOrientation', 'dropUnreferenced', 'refine', 'loop'] as const) if (spec[k] !== undefined) source[k] = spec[k];
+  return { mesh: repaired.mesh, vertexData: repaired.vertexData, source, notes };
+}

@@ -1,0 +1,483 @@
+/// <reference types="vite/client" />
+/**
+ * The Placode viewer: scenario on the left, the surface in the centre,
+ * stability, timeline and export below. The solver runs in a Web Worker
+ * (simulationWorker.ts); this module draws, brushes and keeps the timeline.
+ */
+import { SurfaceView } from './SurfaceView.ts';
+import { ScenarioForm } from './scenarioForm.ts';
+import { drawDispersion } from './stabilityPlot.ts';
+import { drawColorBar } from './colorBar.ts';
+import { el, byId, download, fmt } from './dom.ts';
+import type { FromWorker, ToWorker, StabilityView } from './protocol.ts';
+import { colorizeField, COLORMAP_NAMES, type ColormapName } from '../../solver/io/colormap.ts';
+import { parseMeshFile } from '../../solver/io/parseMeshFile.ts';
+import { meshStatistics } from '../../solver/mesh/meshStatistics.ts';
+import { speciesFromProperties } from '../../solver/io/runFiles.ts';
+import { encodeSnapshot } from '../../solver/io/encodeSnapshot.ts';
+import { speciesField } from '../../solver/integrate/ReactionDiffusionSystem.ts';
+import type { MeshFileContents } from '../../solver/io/scenarioMesh.ts';
+import type { Mesh } from '../../solver/mesh/Mesh.ts';
+
+const EXAMPLES = import.meta.glob('../../meshes/examples/*.yaml', { query: '?raw', import: 'default', eager: true }) as Record<string, string>;
+
+/** One picture of the timeline: a state on a surface. */
+interface Frame {
+  time: number;
+  mesh: Mesh;
+  fields: Record<string, Float64Array>;
+  /** a frame of a run directory not fetched yet */
+  file?: string;
+}
+
+/** What the tests (and a curious user, in the console) can read of the app. */
+interface AppState {
+  ready: boolean;
+  loaded: boolean;
+  running: boolean;
+  time: number;
+  step: number;
+  vertices: number;
+  species: string[];
+  frames: number;
+  view: 'live' | 'frame' | 'mode';
+  problems: string[];
+  messages: string[];
+  stability: StabilityView | null;
+  /** min, mean and max of the painted field as shown */
+  shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number } | null;
+  stepsPerSecond: number;
+  serverRun: { name: string; frames: number } | null;
+}
+
+const app: AppState = { ready: false, loaded: false, running: false, time: 0, step: 0, vertices: 0, species: [], frames: 0, view: 'live', problems: [], messages: [], stability: null, shown: null, stepsPerSecond: 0, serverRun: null };
+(window as unknown as { __placode: AppState }).__placode = app;
+
+const worker = new Worker(new URL('./simulationWorker.ts', import.meta.url), { type: 'module' });
+const send = (m: ToWorker, transfer: Transferable[] = []) => worker.postMessage(m, transfer);
+
+const view = new SurfaceView(byId('stage'));
+const openedFiles: Record<string, MeshFileContents> = {};
+const form = new ScenarioForm(() => { byId('setup').classList.add('pending'); });
+byId('scenario-panel').append(form.root);
+
+// ---- messages
+function say(text: string, kind: 'info' | 'error' | 'warning' = 'info') {
+  const box = byId('messages');
+  const p = el('p', { class: kind, text });
+  box.prepend(p);
+  while (box.childElementCount > 12) box.lastElementChild!.remove();
+  app.messages.unshift(`${kind}: ${text}`);
+}
+function clearProblems() {
+  byId('problems').replaceChildren();
+  app.problems = [];
+}
+
+// ---- live state and what is shown
+let live: Frame | undefined;
+let timeline: Frame[] = [];
+let timelineSource: 'live' | 'server' = 'live';
+let shown: Frame | undefined;
+let mode: { index: number; eigenvalue: number; values: Float64Array } | undefined;
+let shownTriangles: Uint32Array | undefined;
+let runRange: [number, number] | undefined;
+let rest: (number | null)[] = [];
+
+const speciesSelect = byId<HTMLSelectElement>('paint-species');
+const colormapSelect = byId<HTMLSelectElement>('paint-colormap');
+const rangeSelect = byId<HTMLSelectElement>('paint-range');
+for (const c of COLORMAP_NAMES) colormapSelect.append(el('option', { value: c, text: c }));
+
+function setSpecies(names: string[], preferred?: string) {
+  const before = speciesSelect.value;
+  speciesSelect.replaceChildren(...names.map((s) => el('option', { value: s, text: s })));
+  speciesSelect.value = names.includes(before) ? before : preferred && names.includes(preferred) ? preferred : names[names.length - 1];
+}
+
+function fieldRange(values: Float64Array): [number, number] {
+  let lo = Infinity, hi = -Infinity;
+  for (let i = 0; i < values.length; i++) { const v = values[i]; if (v < lo) lo = v; if (v > hi) hi = v; }
+  return [lo, hi];
+}
+
+/** Paint what is shown: a frame (live or recorded) or an eigenmode. */
+function paint() {
+  const frame = app.view === 'live' ? live : shown;
+  if (!frame) return;
+  if (frame.mesh.triangles !== shownTriangles) {
+    const reframe = shownTriangles === undefined || frame.mesh.triangles.length < shownTriangles.length / 4 - 1;
+    shownTriangles = frame.mesh.triangles;
+    view.setSurface(frame.mesh.positions, frame.mesh.triangles, reframe);
+  } else {
+    view.movePositions(frame.mesh.positions);
+  }
+  let values: Float64Array;
+  let label: string;
+  let colormap = colormapSelect.value as ColormapName;
+  let range: [number, number];
+  if (app.view === 'mode' && mode) {
+    values = mode.values;
+    label = `mode ${mode.index}`;
+    const m = Math.max(...fieldRange(values).map(Math.abs));
+    range = [-m, m];
+    colormap = 'diverging';
+  } else {
+    const species = speciesSelect.value;
+    values = frame.fields[species];
+    if (!values) return;
+    label = species;
+    const own = fieldRange(values);
+    if (rangeSelect.value === 'fixed') range = [Number(byId<HTMLInputElement>('range-min').value), Number(byId<HTMLInputElement>('range-max').value)];
+    else if (rangeSelect.value === 'run') {
+      runRange = runRange ? [Math.min(runRange[0], own[0]), Math.max(runRange[1], own[1])] : own;
+      range = runRange;
+    } else range = own;
+    if (!(range[1] > range[0])) range = [range[0] - 0.5, range[0] + 0.5];
+  }
+  view.setColors(colorizeField(values, colormap, range));
+  drawColorBar(byId<HTMLCanvasElement>('colorbar'), colormap, range, label);
+  let sum = 0;
+  for (let i = 0; i < values.length; i++) sum += values[i];
+  const [lo, hi] = fieldRange(values);
+  app.shown = { species: label, min: lo, mean: sum / values.length, max: hi, vertices: frame.mesh.positions.length / 3, extent: extent(frame.mesh.positions) };
+  byId('view-caption').textContent = app.view === 'mode' && mode ? `eigenmode ${mode.index}, λ = ${fmt(mode.eigenvalue)}` : `${timelineSource === 'server' && app.view === 'frame' ? 'recorded run' : app.view === 'frame' ? 'timeline' : 'live'} · t = ${fmt(frame.time)}`;
+}
+
+for (const id of ['paint-species', 'paint-colormap', 'paint-range', 'range-min', 'range-max']) byId(id).addEventListener('input', () => { runRange = undefined; paint(); });
+rangeSelect.addEventListener('input', () => { byId('fixed-range').hidden = rangeSelect.value !== 'fixed'; });
+byId<HTMLInputElement>('wireframe').addEventListener('change', (e) => view.setWireframe((e.target as HTMLInputElement).checked));
+
+// ---- status line
+function status() {
+  byId('status-time').textContent = `t = ${fmt(app.time)}`;
+  byId('status-steps').textContent = `${app.step} steps`;
+  byId('status-rate').textContent = app.running ? `${fmt(app.stepsPerSecond)} steps/s` : app.loaded ? 'paused' : 'not set up';
+  byId('status-vertices').textContent = `${app.vertices} vertices`;
+  byId('run').textContent = app.running ? 'Pause' : 'Start';
+}
+
+// ---- the worker's messages
+worker.onmessage = (event: MessageEvent<FromWorker>) => {
+  const m = event.data;
+  switch (m.type) {
+    case 'loaded': {
+      clearProblems();
+      app.loaded = true;
+      app.running = false;
+      app.species = m.species;
+      app.vertices = m.stats.vertices;
+      app.time = 0;
+      app.step = 0;
+      rest = m.rest;
+      setSpecies(m.species, form.species()[form.species().length - 1]);
+      live = frameOf(0, { positions: m.positions, triangles: m.triangles }, m.state, m.species);
+      timeline = [live];
+      timelineSource = 'live';
+      runRange = undefined;
+      app.view = 'live';
+      mode = undefined;
+      shownTriangles = undefined;
+      byId('setup').classList.remove('pending');
+      const s = m.stats;
+      byId('tissue-stats').textContent = `${s.vertices} vertices · ${s.triangles} triangles · area ${fmt(s.area)} · genus ${s.genus} · ${s.boundaryLoops} boundary loop(s) · ${s.components} component(s) · mean edge ${fmt(s.meanEdge)}`;
+      byId('clock-stats').textContent = `${m.scheme}${m.scheme === 'imex' ? ` (${m.solver})` : ''}, dt = ${fmt(m.dt)}, to t = ${fmt(m.end)}, a frame every ${fmt(m.every)}${m.growing ? ', growing' : ''}`;
+      for (const w of [...m.notes, ...m.warnings]) say(w, 'warning');
+      say(`set up: ${m.species.join(', ')} on ${s.vertices} vertices`);
+      updateTimeline();
+      paint();
+      status();
+      break;
+    }
+    case 'problems': {
+      const box = byId('problems');
+      box.replaceChildren(el('p', { class: 'error', text: 'The scenario was not set up; the current one is unchanged:' }), ...m.problems.map((p) => el('p', { class: 'error', text: `${p.line !== undefined ? `line ${p.line}: ` : ''}${p.path ? `${p.path}: ` : ''}${p.message}` })));
+      app.problems = m.problems.map((p) => `${p.path}: ${p.message}`);
+      break;
+    }
+    case 'frame': {
+      const mesh = m.positions ? { positions: m.positions, triangles: m.triangles ?? live!.mesh.triangles } : live!.mesh;
+      live = frameOf(m.time, mesh, m.state, app.species);
+      app.time = m.time;
+      app.step = m.step;
+      app.running = m.running;
+      app.stepsPerSecond = m.stepsPerSecond;
+      app.vertices = mesh.positions.length / 3;
+      byId('status-growth').textContent = `growth ×${m.growthFactor.toFixed(3)}`;
+      if (m.keep && timelineSource === 'live') {
+        if (timeline[timeline.length - 1]?.time !== m.time) timeline.push(live);
+        thinTimeline();
+        updateTimeline();
+      }
+      if (app.view === 'live') paint();
+      status();
+      requestAnimationFrame(() => send({ type: 'ack' }));
+      break;
+    }
+    case 'stopped':
+      app.running = false;
+      say(m.message, m.reason === 'end' ? 'info' : 'error');
+      status();
+      break;
+    case 'stability':
+      app.stability = m.view;
+      showStability(m.view);
+      break;
+    case 'mode':
+      mode = { index: m.index, eigenvalue: m.eigenvalue, values: m.values };
+      app.view = 'mode';
+      shown = live;
+      paint();
+      break;
+    case 'error':
+      say(m.message, 'error');
+      app.running = false;
+      status();
+      break;
+  }
+};
+worker.onerror = (e) => say(`the simulation worker failed: ${e.message}`, 'error');
+
+/** Largest distance of a vertex from the centroid. */
+function extent(p: Float64Array): number {
+  const n = p.length / 3;
+  let cx = 0, cy = 0, cz = 0;
+  for (let i = 0; i < n; i++) { cx += p[3 * i]; cy += p[3 * i + 1]; cz += p[3 * i + 2]; }
+  cx /= n; cy /= n; cz /= n;
+  let r = 0;
+  for (let i = 0; i < n; i++) r = Math.max(r, Math.hypot(p[3 * i] - cx, p[3 * i + 1] - cy, p[3 * i + 2] - cz));
+  return r;
+}
+
+function frameOf(time: number, mesh: Mesh, state: Float64Array, species: string[]): Frame {
+  const fields: Record<string, Float64Array> = {};
+  species.forEach((s, i) => (fields[s] = speciesField(state, species.length, i)));
+  return { time, mesh, fields };
+}
+
+/** Keep the timeline under ~400 MB: drop every other frame (the first and last stay). */
+function thinTimeline() {
+  const bytes = timeline.reduce((a, f) => a + Object.values(f.fields).reduce((b, v) => b + v.byteLength, 0), 0);
+  if (bytes < 400e6) return;
+  timeline = timeline.filter((_, i) => i % 2 === 0 || i === timeline.length - 1);
+  say('the timeline keeps every other frame from now on (memory)', 'warning');
+}
+
+// ---- transport
+byId('run').addEventListener('click', () => {
+  if (!app.loaded) return say('set up a scenario first', 'error');
+  if (app.running) send({ type: 'pause' });
+  else {
+    app.view = 'live';
+    send({ type: 'run' });
+    app.running = true;
+  }
+  status();
+});
+byId('step').addEventListener('click', () => { if (app.loaded) { app.view = 'live'; send({ type: 'step', steps: Number(byId<HTMLInputElement>('step-count').value) || 1 }); } });
+byId('reset').addEventListener('click', () => {
+  if (!app.loaded) return;
+  timeline = [];
+  timelineSource = 'live';
+  runRange = undefined;
+  app.view = 'live';
+  send({ type: 'reset' });
+  updateTimeline();
+});
+byId('setup').addEventListener('click', () => setUp());
+form.root.querySelector('#use-text')!.addEventListener('click', () => { form.useText(); setUp(); });
+
+function setUp() {
+  const text = form.scenarioText();
+  send({ type: 'load', text, files: openedFiles });
+}
+
+// ---- examples
+const exampleSelect = byId<HTMLSelectElement>('example');
+for (const path of Object.keys(EXAMPLES).sort()) {
+  const name = path.split('/').pop()!.replace(/\.yaml$/, '');
+  if (name.endsWith('-sweep')) continue;
+  exampleSelect.append(el('option', { value: path, text: name }));
+}
+exampleSelect.addEventListener('change', () => {
+  if (!exampleSelect.value) return;
+  form.useText(EXAMPLES[exampleSelect.value]);
+  setUp();
+});
+
+// ---- mesh files: the button and drag-and-drop
+async function openMeshFile(file: File) {
+  let bytes: Uint8Array;
+  try {
+    bytes = new Uint8Array(await file.arrayBuffer());
+  } catch (e) {
+    return say(`${file.name}: cannot be read (${(e as Error).message})`, 'error');
+  }
+  try {
+    const imported = parseMeshFile(bytes, file.name);
+    const stats = meshStatistics(imported.mesh);
+    if (stats.errors.length) {
+      return say(`${file.name} cannot be used for surface finite elements: ${stats.errors.join('; ')}. Nothing was changed; repair it (placode mesh ${file.name} --weld --fix-orientation -o fixed.ply) and open the result.`, 'error');
+    }
+    openedFiles[file.name] = { mesh: imported.mesh, vertexData: imported.vertexData, notes: imported.notes, source: { file: file.name } };
+    for (const w of [...imported.notes, ...stats.warnings]) say(`${file.name}: ${w}`, 'warning');
+    say(`opened ${file.name}: ${stats.vertices} vertices, ${stats.triangles} triangles, genus ${stats.genus}, ${stats.boundaryLoops} boundary loop(s)`);
+    form.setMesh({ name: file.name, vertices: stats.vertices });
+    setUp();
+  } catch (e) {
+    say(`${file.name}: ${(e as Error).message}. Nothing was changed.`, 'error');
+  }
+}
+byId<HTMLInputElement>('open-mesh').addEventListener('change', (e) => {
+  const f = (e.target as HTMLInputElement).files?.[0];
+  if (f) void openMeshFile(f);
+  (e.target as HTMLInputElement).value = '';
+});
+const stage = byId('stage');
+stage.addEventListener('dragover', (e) => { e.preventDefault(); stage.classList.add('drop'); });
+stage.addEventListener('dragleave', () => stage.classList.remove('drop'));
+stage.addEventListener('drop', (e) => {
+  e.preventDefault();
+  stage.classList.remove('drop');
+  const f = e.dataTransfer?.files?.[0];
+  if (f) void openMeshFile(f);
+});
+
+// ---- brush
+function setTool(tool: 'off' | 'seed' | 'erase') {
+  view.setBrush(tool);
+  for (const t of ['off', 'seed', 'erase']) byId(`tool-${t}`).classList.toggle('active', t === tool);
+}
+for (const t of ['off', 'seed', 'erase'] as const) byId(`tool-${t}`).addEventListener('click', () => setTool(t));
+byId<HTMLInputElement>('brush-size').addEventListener('input', (e) => { view.brushRadius = Number((e.target as HTMLInputElement).value) / 100; });
+view.onStroke = (stroke) => {
+  if (!app.loaded || app.view !== 'live') return say('brushing paints the live state: press “Show live” first', 'warning');
+  const values = view.brushing === 'seed' ? form.spotValuesBySpecies() : rest;
+  if (view.brushing === 'seed' && values.every((v) => v === null)) return say('give the spot values (Start section) that the seed brush paints', 'error');
+  send({ type: 'brush', vertices: stroke.vertices, weights: stroke.weights, mode: view.brushing === 'erase' ? 'erase' : 'seed', values }, [stroke.vertices.buffer, stroke.weights.buffer]);
+};
+
+// ---- stability
+function showStability(v: StabilityView) {
+  drawDispersion(byId('dispersion'), v, (i) => send({ type: 'mode', index: i }));
+  const lines: string[] = [];
+  if (v.steadyState) lines.push(`steady state ${Object.entries(v.steadyState).map(([k, x]) => `${k} = ${fmt(x)}`).join(', ')}`);
+  lines.push(v.band ? `unstable band k² ∈ [${fmt(v.band[0])}, ${fmt(v.band[1])}], fastest k² = ${fmt(v.fastest!.k2)} (rate ${fmt(v.fastest!.rate)})` : 'no Turing band: the steady state is stable to every spatial mode (or unstable without diffusion)');
+  lines.push(v.predicted ? `predicted: mode ${v.predicted.index}, λ = ${fmt(v.predicted.eigenvalue)}, multiplicity ${v.predicted.multiplicity}` : 'no surface mode grows');
+  byId('stability-summary').replaceChildren(...[...lines, ...v.notes].map((t) => el('p', { text: t })));
+  byId('mode-list').replaceChildren(...v.unstable.slice(0, 40).map((m) => {
+    const b = el('button', { type: 'button', class: 'mode', 'data-mode': m.index, text: `${m.index}: λ ${fmt(m.eigenvalue)}, rate ${fmt(m.rate)}` });
+    b.addEventListener('click', () => send({ type: 'mode', index: m.index }));
+    return b;
+  }));
+}
+byId('show-live').addEventListener('click', () => { app.view = 'live'; timelineSource = timelineSource === 'server' ? 'server' : 'live'; paint(); });
+
+// ---- timeline
+const slider = byId<HTMLInputElement>('timeline-slider');
+function updateTimeline() {
+  app.frames = timeline.length;
+  slider.max = String(Math.max(0, timeline.length - 1));
+  if (app.view !== 'frame') slider.value = slider.max;
+  byId('timeline-label').textContent = timeline.length ? `${timeline.length} frame(s) of the ${timelineSource === 'server' ? `recorded run ${app.serverRun?.name ?? ''}` : 'current run'}` : 'no frames yet';
+}
+async function showFrame(index: number) {
+  const f = timeline[index];
+  if (!f) return;
+  if (f.file) {
+    try {
+      const res = await fetch(`run/${f.file}`);
+      if (!res.ok) throw new Error(`${res.status} ${res.statusText}`);
+      const imported = parseMeshFile(new Uint8Array(await res.arrayBuffer()), f.file);
+      f.mesh = imported.mesh;
+      f.fields = speciesFromProperties(imported.vertexData);
+      f.file = undefined;
+    } catch (e) {
+      return say(`cannot load ${f.file}: ${(e as Error).message}`, 'error');
+    }
+  }
+  shown = f;
+  app.view = 'frame';
+  if (timelineSource === 'server') setSpecies(Object.keys(f.fields));
+  byId('timeline-label').textContent = `frame ${index + 1} of ${timeline.length}, t = ${fmt(f.time)}`;
+  paint();
+}
+slider.addEventListener('input', () => void showFrame(Number(slider.value)));
+byId('load-run').addEventListener('click', () => void loadServerRun());
+
+async function loadServerRun() {
+  let info: { name: string; frames: { file: string; time: number }[]; final?: string; scenarioText?: string };
+  try {
+    const res = await fetch('api/run');
+    if (!res.ok) throw new Error(`${res.status} ${res.statusText}`);
+    const body = await res.json();
+    if (!body.run) return say('no run directory was given: start the viewer with placode view RUNDIR', 'error');
+    info = body.run;
+  } catch (e) {
+    return say(`cannot list the run: ${(e as Error).message}`, 'error');
+  }
+  if (app.running) send({ type: 'pause' });
+  const empty: Mesh = { positions: new Float64Array(0), triangles: new Uint32Array(0) };
+  timeline = info.frames.map((f) => ({ time: f.time, mesh: empty, fields: {}, file: f.file }));
+  timelineSource = 'server';
+  app.serverRun = { name: info.name, frames: timeline.length };
+  runRange = undefined;
+  shownTriangles = undefined;
+  updateTimeline();
+  if (info.scenarioText) byId('run-scenario').hidden = false, (byId('run-scenario') as HTMLButtonElement).onclick = () => { form.useText(info.scenarioText); say('the run\'s scenario is in the text box; press “Set up from text” to run it here'); };
+  await showFrame(0);
+  say(`loaded run ${info.name}: ${timeline.length} frames`);
+}
+
+// ---- export
+byId('export-png').addEventListener('click', () => {
+  const w = Math.round(Number(byId<HTMLInputElement>('png-width').value)), h = Math.round(Number(byId<HTMLInputElement>('png-height').value));
+  if (!(w >= 64 && h >= 64 && w <= 8192 && h <= 8192)) return say('PNG size: width and height from 64 to 8192 pixels', 'error');
+  const picture = view.renderAt(w, h);
+  const scale = Math.max(1, h / 700);
+  const bar = document.createElement('canvas');
+  const colormap = (app.view === 'mode' ? 'diverging' : colormapSelect.value) as ColormapName;
+  const f = app.view === 'live' ? live : shown;
+  const values = app.view === 'mode' && mode ? mode.values : f?.fields[speciesSelect.value];
+  if (values) {
+    const own = fieldRange(values);
+    const range: [number, number] = app.view === 'mode' ? [-Math.max(...own.map(Math.abs)), Math.max(...own.map(Math.abs))] : rangeSelect.value === 'fixed' ? [Number(byId<HTMLInputElement>('range-min').value), Number(byId<HTMLInputElement>('range-max').value)] : rangeSelect.value === 'run' && runRange ? runRange : own;
+    drawColorBar(bar, colormap, range, app.view === 'mode' ? `mode ${mode?.index}` : speciesSelect.value, scale);
+    picture.getContext('2d')!.drawImage(bar, w - bar.width - 10 * scale, (h - bar.height) / 2);
+  }
+  picture.toBlob((blob) => { if (blob) download('placode-view.png', blob, 'image/png'); }, 'image/png');
+});
+async function exportMesh(format: 'ply' | 'glb') {
+  const f = app.view === 'live' ? live : shown;
+  if (!f) return say('nothing to export yet', 'error');
+  const colors = app.view === 'mode' && mode ? colorizeField(mode.values, 'diverging') : colorizeField(f.fields[speciesSelect.value], colormapSelect.value as ColormapName);
+  const fields = app.view === 'mode' && mode ? { ...f.fields, [`mode${mode.index}`]: mode.values } : f.fields;
+  const bytes = await encodeSnapshot(format, f.mesh, fields, colors, `placode viewer, t = ${f.time}`);
+  download(`placode-view.${format}`, bytes as BlobPart, format === 'glb' ? 'model/gltf-binary' : 'application/octet-stream');
+}
+byId('export-ply').addEventListener('click', () => void exportMesh('ply'));
+byId('export-glb').addEventListener('click', () => void exportMesh('glb'));
+byId('save-scenario').addEventListener('click', () => download('scenario.yaml', form.scenarioText(), 'text/yaml'));
+
+// ---- tabs
+for (const tab of document.querySelectorAll<HTMLButtonElement>('[data-tab]')) {
+  tab.addEventListener('click', () => {
+    for (const t of document.querySelectorAll<HTMLButtonElement>('[data-tab]')) t.classList.toggle('active', t === tab);
+    for (const p of document.querySelectorAll<HTMLElement>('.tab-panel')) p.hidden = p.id !== tab.dataset.tab;
+  });
+}
+
+// ---- start: a run directory given to `placode view`, else the form's scenario
+(async () => {
+  const res = await fetch('api/run').then((r) => r.json()).catch(() => undefined);
+  if (res?.run) {
+    byId('load-run').hidden = false;
+    await loadServerRun();
+    (document.querySelector('[data-tab="timeline-panel"]') as HTMLButtonElement).click();
+  } else {
+    byId('load-run').hidden = true;
+    setUp();
+  }
+  app.ready = true;
+  status();
+})();

@@ -1,0 +1,80 @@
+/**
+ * Messages between the page and the simulation worker. Fields travel as
+ * typed arrays whose buffers are transferred (never copied through JSON).
+ */
+import type { ScenarioProblem } from '../../solver/io/ScenarioError.ts';
+import type { MeshFileContents } from '../../solver/io/scenarioMesh.ts';
+
+export type ToWorker =
+  | { type: 'load'; text: string; files: Record<string, MeshFileContents> }
+  | { type: 'run' }
+  | { type: 'pause' }
+  | { type: 'step'; steps: number }
+  | { type: 'reset' }
+  | { type: 'ack' }
+  | { type: 'brush'; vertices: Uint32Array; weights: Float32Array; mode: 'seed' | 'erase'; values: (number | null)[] }
+  | { type: 'mode'; index: number };
+
+export interface SurfaceStats {
+  vertices: number;
+  triangles: number;
+  area: number;
+  genus: number;
+  boundaryLoops: number;
+  components: number;
+  meanEdge: number;
+}
+
+export interface StabilityView {
+  species: string[];
+  notes: string[];
+  steadyState: Record<string, number> | null;
+  band: [number, number] | null;
+  fastest: { k2: number; rate: number } | null;
+  dispersion: { k2: number[]; rate: number[] };
+  /** surface eigenvalues computed, and the growth rate of each */
+  eigenvalues: number[];
+  rates: number[];
+  unstable: { index: number; eigenvalue: number; rate: number }[];
+  predicted: { index: number; eigenvalue: number; rate: number; multiplicity: number } | null;
+}
+
+export type FromWorker =
+  | {
+      type: 'loaded';
+      positions: Float64Array;
+      triangles: Uint32Array;
+      species: string[];
+      state: Float64Array;
+      dt: number;
+      end: number;
+      every: number;
+      scheme: string;
+      solver: string;
+      growing: boolean;
+      warnings: string[];
+      notes: string[];
+      stats: SurfaceStats;
+      /** homogeneous steady state (the erase brush's value), per species */
+      rest: (number | null)[];
+    }
+  | { type: 'problems'; message: string; problems: ScenarioProblem[] }
+  | {
+      type: 'frame';
+      time: number;
+      step: number;
+      state: Float64Array;
+      /** a moved surface (growing runs) */
+      positions?: Float64Array;
+      /** a refined surface */
+      triangles?: Uint32Array;
+      stepsPerSecond: number;
+      growthFactor: number;
+      running: boolean;
+      /** a frame to keep on the timeline (at the scenario's output times) */
+      keep: boolean;
+    }
+  | { type: 'stopped'; reason: 'end' | 'blow-up' | 'degenerate'; message: string }
+  | { type: 'stability'; view: StabilityView }
+  | { type: 'mode'; index: number; eigenvalue: number; values: Float64Array }
+  | { type: 'error'; message: string };
