@@ -31,6 +31,8 @@ export class SurfaceView {
   brushRadius = 0.06;
   brushing: 'off' | 'seed' | 'erase' = 'off';
   onStroke: ((s: BrushStroke) => void) | undefined;
+  /** milliseconds the last brush dab took to pick the surface and gather its vertices */
+  lastBrushMs = 0;
   private positions: Float64Array = new Float64Array(0);
   private framed = false;
   private drawRequested = false;
@@ -208,6 +210,7 @@ export class SurfaceView {
     const canvas = this.renderer.domElement;
     let down = false;
     const apply = (e: PointerEvent) => {
+      const t0 = performance.now();
       const hit = this.pick(e.clientX, e.clientY);
       const r = this.brushRadius * (this.geometry.boundingSphere?.radius ?? 1);
       this.cursor.visible = !!hit;
@@ -218,6 +221,7 @@ export class SurfaceView {
       this.draw();
       if (hit && down) {
         const stroke = this.brushAt(hit.point);
+        this.lastBrushMs = performance.now() - t0;
         if (stroke.vertices.length) this.onStroke?.(stroke);
       }
     };

@@ -48,9 +48,11 @@ interface AppState {
   shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number } | null;
   stepsPerSecond: number;
   serverRun: { name: string; frames: number } | null;
+  /** milliseconds of the last brush dab (picking and gathering vertices; the BVH is built on the first) */
+  brushMs: number;
 }
 
-const app: AppState = { ready: false, loaded: false, running: false, time: 0, step: 0, vertices: 0, species: [], frames: 0, view: 'live', problems: [], messages: [], stability: null, shown: null, stepsPerSecond: 0, serverRun: null };
+const app: AppState = { ready: false, loaded: false, running: false, time: 0, step: 0, vertices: 0, species: [], frames: 0, view: 'live', problems: [], messages: [], stability: null, shown: null, stepsPerSecond: 0, serverRun: null, brushMs: 0 };
 (window as unknown as { __placode: AppState }).__placode = app;
 
 const worker = new Worker(new URL('./simulationWorker.ts', import.meta.url), { type: 'module' });
@@ -81,6 +83,7 @@ let timelineSource: 'live' | 'server' = 'live';
 let shown: Frame | undefined;
 let mode: { index: number; eigenvalue: number; values: Float64Array } | undefined;
 let shownTriangles: Uint32Array | undefined;
+let shownPositions: Float64Array | undefined;
 let runRange: [number, number] | undefined;
 let rest: (number | null)[] = [];
 
@@ -108,8 +111,10 @@ function paint() {
   if (frame.mesh.triangles !== shownTriangles) {
     const reframe = shownTriangles === undefined || frame.mesh.triangles.length < shownTriangles.length / 4 - 1;
     shownTriangles = frame.mesh.triangles;
+    shownPositions = frame.mesh.positions;
     view.setSurface(frame.mesh.positions, frame.mesh.triangles, reframe);
-  } else {
+  } else if (frame.mesh.positions !== shownPositions) {
+    shownPositions = frame.mesh.positions;
     view.movePositions(frame.mesh.positions);
   }
   let values: Float64Array;
@@ -179,6 +184,10 @@ worker.onmessage = (event: MessageEvent<FromWorker>) => {
       mode = undefined;
       shownTriangles = undefined;
       byId('setup').classList.remove('pending');
+      app.stability = null;
+      byId('stability-summary').replaceChildren(el('p', { text: 'computing the surface\'s eigenmodes…' }));
+      byId('mode-list').replaceChildren();
+      byId('dispersion').replaceChildren();
       const s = m.stats;
       byId('tissue-stats').textContent = `${s.vertices} vertices · ${s.triangles} triangles · area ${fmt(s.area)} · genus ${s.genus} · ${s.boundaryLoops} boundary loop(s) · ${s.components} component(s) · mean edge ${fmt(s.meanEdge)}`;
       byId('clock-stats').textContent = `${m.scheme}${m.scheme === 'imex' ? ` (${m.solver})` : ''}, dt = ${fmt(m.dt)}, to t = ${fmt(m.end)}, a frame every ${fmt(m.every)}${m.growing ? ', growing' : ''}`;
@@ -351,6 +360,7 @@ function setTool(tool: 'off' | 'seed' | 'erase') {
 for (const t of ['off', 'seed', 'erase'] as const) byId(`tool-${t}`).addEventListener('click', () => setTool(t));
 byId<HTMLInputElement>('brush-size').addEventListener('input', (e) => { view.brushRadius = Number((e.target as HTMLInputElement).value) / 100; });
 view.onStroke = (stroke) => {
+  app.brushMs = view.lastBrushMs;
   if (!app.loaded || app.view !== 'live') return say('brushing paints the live state: press “Show live” first', 'warning');
   const values = view.brushing === 'seed' ? form.spotValuesBySpecies() : rest;
   if (view.brushing === 'seed' && values.every((v) => v === null)) return say('give the spot values (Start section) that the seed brush paints', 'error');

@@ -111,11 +111,13 @@ export class ScenarioForm {
       ),
     );
     this.root.addEventListener('submit', (e) => e.preventDefault());
-    this.shape.addEventListener('change', () => { this.fillShapeParams(); this.changed(); });
-    this.model.addEventListener('change', () => { this.fillModel(); this.changed(); });
-    this.speciesInput.addEventListener('change', () => { this.fillCustom(); this.changed(); });
-    this.source.addEventListener('change', () => this.changed());
-    this.root.addEventListener('input', (e) => { if (e.target !== this.text) this.changed(); });
+    this.root.addEventListener('input', (e) => {
+      if (e.target === this.text) return;
+      if (e.target === this.shape) this.fillShapeParams();
+      if (e.target === this.model) this.fillModel();
+      if (e.target === this.speciesInput) this.fillCustom();
+      this.changed();
+    });
     this.root.querySelector('#use-form')!.addEventListener('click', () => { this.textMode = false; this.changed(); });
     this.fillShapeParams();
     this.fillModel();
@@ -282,8 +284,8 @@ export class ScenarioForm {
     if (this.source.value === 'built-in shape') {
       const params: Record<string, number> = {};
       for (const i of this.shapeParams.querySelectorAll<HTMLInputElement>('[data-param]')) {
-        const def = SHAPES[this.shape.value].parameters[i.dataset.param!];
-        if (Number(i.value) !== def.default) params[i.dataset.param!] = Number(i.value);
+        const def = SHAPES[this.shape.value]?.parameters[i.dataset.param!];
+        if (def && Number(i.value) !== def.default) params[i.dataset.param!] = Number(i.value);
       }
       sc.mesh = { shape: this.shape.value, ...(Object.keys(params).length ? { params } : {}), vertices: Math.round(Number(this.vertices.value)) };
     } else {
