@@ -175,7 +175,16 @@ worker.onmessage = (event: MessageEvent<FromWorker>) => {
       app.time = 0;
       app.step = 0;
       rest = m.rest;
-      setSpecies(m.species, form.species()[form.species().length - 1]);
+      speciesSelect.value = '';
+      setSpecies(m.species, m.colour);
+      colormapSelect.value = m.colormap;
+      if (m.range === 'frame') rangeSelect.value = 'frame';
+      else {
+        rangeSelect.value = 'fixed';
+        byId<HTMLInputElement>('range-min').value = String(m.range[0]);
+        byId<HTMLInputElement>('range-max').value = String(m.range[1]);
+      }
+      byId('fixed-range').hidden = rangeSelect.value !== 'fixed';
       live = frameOf(0, { positions: m.positions, triangles: m.triangles }, m.state, m.species);
       timeline = [live];
       timelineSource = 'live';

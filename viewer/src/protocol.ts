@@ -57,6 +57,10 @@ export type FromWorker =
       stats: SurfaceStats;
       /** homogeneous steady state (the erase brush's value), per species */
       rest: (number | null)[];
+      /** the scenario's painting: species, colormap, range */
+      colour: string;
+      colormap: string;
+      range: [number, number] | 'frame';
     }
   | { type: 'problems'; message: string; problems: ScenarioProblem[] }
   | {

@@ -104,6 +104,7 @@ export class ScenarioForm {
       ),
       el('details', { class: 'section', id: 'text-section' },
         el('summary', { text: 'Scenario text' }),
+        el('p', { class: 'warning', id: 'text-mode-note', text: 'The scenario text is in use: the form above is not. “Back to the form” returns to it.' }),
         el('p', { class: 'hint', text: 'The scenario the form writes. Edit it, or paste any scenario, then press “Set up from text”.' }),
         this.text,
         el('button', { type: 'button', id: 'use-text', text: 'Set up from text' }),
@@ -118,7 +119,7 @@ export class ScenarioForm {
       if (e.target === this.speciesInput) this.fillCustom();
       this.changed();
     });
-    this.root.querySelector('#use-form')!.addEventListener('click', () => { this.textMode = false; this.changed(); });
+    this.root.querySelector('#use-form')!.addEventListener('click', () => { this.textMode = false; this.root.classList.remove('text-mode'); this.changed(); });
     this.fillShapeParams();
     this.fillModel();
     (this.shapeParams.querySelector('[data-param="radius"]') as HTMLInputElement).value = '0.25';
@@ -135,6 +136,7 @@ export class ScenarioForm {
   useText(text?: string): void {
     if (text !== undefined) this.text.value = text;
     this.textMode = true;
+    this.root.classList.add('text-mode');
     (this.root.querySelector('#text-section') as HTMLDetailsElement).open = true;
   }
 

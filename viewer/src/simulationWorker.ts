@@ -168,7 +168,7 @@ function load(text: string, files: Record<string, MeshFileContents>) {
     type: 'loaded', positions, triangles, species: next.species, state, dt: next.dt, end: next.end, every: next.output.everySteps * next.dt,
     scheme: next.scheme, solver: next.solver, growing: next.growth !== undefined, warnings: next.warnings, notes: next.meshNotes,
     stats: { vertices: stats.vertices, triangles: stats.triangles, area: stats.area, genus: stats.genus, boundaryLoops: stats.boundaryLoops, components: stats.components, meanEdge: stats.edgeLength.mean },
-    rest,
+    rest, colour: next.output.colour, colormap: next.output.colormap, range: next.output.range,
   }, [state.buffer, positions.buffer, triangles.buffer]);
   // the surface's eigenpairs take a while on big meshes: after the surface is shown
   const view = stability(next);
