@@ -241,6 +241,22 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     await close(page);
   }, 90_000);
 
+  it('a growing scenario grows live: the growth factor, the refinement and the timeline follow it', async () => {
+    const page = await open(appUrl);
+    await setUpText(page, GROWING);
+    const start = await state(page);
+    await page.click('#run');
+    await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.messages[0]?.includes('reached the end time'), null, { timeout: 60_000 });
+    const end = await state(page);
+    expect(end.time).toBe(400);
+    expect(end.frames).toBe(5);
+    expect(end.vertices).toBeGreaterThan(start.vertices); // refined once the edges grew by 1.4
+    // lengths grow as e^{rt}: the growth factor shown is the square root of the area ratio
+    const shown = Number(/growth ×([0-9.]+)/.exec((await page.textContent('#status-growth'))!)![1]);
+    expect(shown).toBeCloseTo(Math.exp(0.002 * 400), 2);
+    await close(page);
+  }, 90_000);
+
   it('exports the view as PNG, the coloured mesh as PLY and GLB (valid glTF), and the scenario the command line runs identically', async () => {
     const page = await open(appUrl);
     const small = QUIET.replace('vertices: 2000', 'vertices: 800').replace('end: 100000', 'end: 60') + 'initial: {spots: {count: 3, radius: 0.05, values: {u: 0.5, v: 0.25}}}\n';
