@@ -106,7 +106,7 @@ describe('placode sweep collect', () => {
 /** Is a Slurm controller answering here? */
 function slurmUp(): boolean {
   const r = spawnSync('sinfo', ['-h', '-o', '%t'], { encoding: 'utf8', timeout: 10_000 });
-  return r.status === 0 && /idle|mix|alloc/.test(r.stdout);
+  return r.status === 0 && /^(idle|mix|alloc)$/m.test(r.stdout);
 }
 
 const haveSlurm = slurmUp();
