@@ -1,9 +1,9 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync, readdirSync, copyFileSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { readFileSync, writeFileSync, existsSync, readdirSync, copyFileSync } from 'node:fs';
 import { spawn } from 'node:child_process';
-import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { runCli as run } from '../fixtures/cli.ts';
+import { useTempFiles } from '../fixtures/tempFiles.ts';
 import { runScenarioFile } from '../../solver/cli/runScenario.ts';
 import { loadMeshFile } from '../../solver/io/meshFiles.ts';
 import { decodeState, speciesFromProperties } from '../../solver/io/runFiles.ts';
@@ -11,15 +11,8 @@ import { thresholdComponents } from '../../solver/analysis/thresholdComponents.t
 import { meshArea } from '../../solver/mesh/triangleAreas.ts';
 
 
-let dir = '';
-beforeAll(() => { dir = mkdtempSync(join(tmpdir(), 'placode-run-')); });
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
-
-function scenario(name: string, text: string): string {
-  const file = join(dir, name);
-  writeFileSync(file, text);
-  return file;
-}
+const temp = useTempFiles('placode-run-');
+const scenario = temp.write;
 
 const SMALL = `
 seed: 11
@@ -43,7 +36,7 @@ function outputs(runDir: string): Record<string, Buffer> {
 describe('placode run', () => {
   it('writes record.json, frames, final.ply and metrics.csv, as documented', async () => {
     const file = scenario('small.yaml', SMALL);
-    const out = join(dir, 'small');
+    const out = temp.path('small');
     const r = await run('run', file, '--out', out, '--progress', 'none');
     expect(r.err).toMatch(/finished at t=300/);
     expect(r.code).toBe(0);
@@ -73,23 +66,23 @@ describe('placode run', () => {
   });
 
   it('same scenario and seed twice gives byte-identical outputs', async () => {
-    const file = join(dir, 'small.yaml');
-    await run('run', file, '--out', join(dir, 'again'), '--progress', 'none');
-    const a = outputs(join(dir, 'small')), b = outputs(join(dir, 'again'));
+    const file = temp.path('small.yaml');
+    await run('run', file, '--out', temp.path('again'), '--progress', 'none');
+    const a = outputs(temp.path('small')), b = outputs(temp.path('again'));
     expect(Object.keys(b)).toEqual(Object.keys(a));
     for (const k of Object.keys(a)) expect(b[k].equals(a[k]), k).toBe(true);
   });
 
   it('an interrupted run resumes to the same final state as an uninterrupted one', async () => {
-    const out = join(dir, 'interrupted');
-    const first = await runScenarioFile(join(dir, 'small.yaml'), { out, progress: 'none', interruptAfterSteps: 150, log: () => {} });
+    const out = temp.path('interrupted');
+    const first = await runScenarioFile(temp.path('small.yaml'), { out, progress: 'none', interruptAfterSteps: 150, log: () => {} });
     expect(first.reason).toBe('interrupted');
     expect(JSON.parse(readFileSync(join(out, 'record.json'), 'utf8')).status).toBe('interrupted');
     expect(existsSync(join(out, 'final.ply'))).toBe(false);
     const r = await run('run', '--resume', out, '--progress', 'none');
     expect(r.code).toBe(0);
     expect(r.err).toMatch(/resuming .* from t=150/);
-    const a = outputs(join(dir, 'small')), b = outputs(out);
+    const a = outputs(temp.path('small')), b = outputs(out);
     for (const k of Object.keys(a)) expect(b[k].equals(a[k]), k).toBe(true);
     const again = await run('run', '--resume', out);
     expect(again.code).toBe(2);
@@ -98,9 +91,9 @@ describe('placode run', () => {
 
   it('Ctrl-C (SIGINT) stops a real process with its state saved; --resume finishes it identically', async () => {
     const longer = scenario('longer.yaml', SMALL.replace('end: 300', 'end: 15000').replace('every: 100', 'every: 5000'));
-    const reference = join(dir, 'longer-ref');
+    const reference = temp.path('longer-ref');
     expect((await run('run', longer, '--out', reference, '--progress', 'none')).code).toBe(0);
-    const out = join(dir, 'longer-int');
+    const out = temp.path('longer-int');
     const bin = join(__dirname, '..', '..', 'solver', 'cli', 'placode.mjs');
     const child = spawn(process.execPath, [bin, 'run', longer, '--out', out, '--progress', 'lines'], { stdio: ['ignore', 'ignore', 'pipe'] });
     let err = '';
@@ -124,7 +117,7 @@ describe('placode run', () => {
     const n = mesh.positions.length / 3;
     const feed = new Float64Array(n);
     for (let i = 0; i < n; i++) feed[i] = 0.03 + 0.02 * (mesh.positions[3 * i + 2] > 0 ? 1 : 0);
-    saveMeshFile(join(dir, 'fed.ply'), mesh, { properties: { feed } });
+    saveMeshFile(temp.path('fed.ply'), mesh, { properties: { feed } });
     const file = scenario('fed.yaml', `
 mesh: {file: fed.ply}
 kinetics: {model: gray-scott, parameters: {F: {vertexData: feed}}}
@@ -135,8 +128,8 @@ initial:
 time: {scheme: explicit, step: 1, end: 10}
 output: {every: 10}
 `);
-    expect((await run('run', file, '--out', join(dir, 'fed'), '--progress', 'none')).code).toBe(0);
-    const first = speciesFromProperties(loadMeshFile(join(dir, 'fed', 'frames', '0000.ply')).vertexData);
+    expect((await run('run', file, '--out', temp.path('fed'), '--progress', 'none')).code).toBe(0);
+    const first = speciesFromProperties(loadMeshFile(temp.path('fed', 'frames', '0000.ply')).vertexData);
     // the spot sits at the north pole: v = 0.25 within 0.05 of (0, 0, 0.25), 0 elsewhere
     const p = mesh.positions;
     for (let i = 0; i < n; i++) {
@@ -146,7 +139,7 @@ output: {every: 10}
     }
     // the per-vertex feed acts: where v = 0 and nothing diffuses, u' = F(1 − u), and ten forward
     // Euler steps of 1 give 1 − u = 0.5·(1 − F)¹⁰ with each vertex's own F
-    const after = decodeState(readFileSync(join(dir, 'fed', 'state.bin')), 'fed');
+    const after = decodeState(readFileSync(temp.path('fed', 'state.bin')), 'fed');
     let checked = 0;
     for (let i = 0; i < n; i++) {
       if (first.v[i] !== 0) continue;
@@ -154,7 +147,7 @@ output: {every: 10}
       checked++;
     }
     expect(checked).toBeGreaterThan(n / 2);
-    const record = JSON.parse(readFileSync(join(dir, 'fed', 'record.json'), 'utf8'));
+    const record = JSON.parse(readFileSync(temp.path('fed', 'record.json'), 'utf8'));
     expect(record.resolved.kinetics.parameters.F).toEqual({ vertexData: 'feed' });
     // continue from that run's final state, adding spots at given vertices
     const next = scenario('next.yaml', `
@@ -165,9 +158,9 @@ initial:
   spots: {vertices: [0, 5], radius: 0.001, values: {u: 0.5}}
 time: {scheme: explicit, end: 10}
 `);
-    expect((await run('run', next, '--out', join(dir, 'next'), '--progress', 'none')).code).toBe(0);
-    const prev = decodeState(readFileSync(join(dir, 'fed', 'state.bin')), 'fed');
-    const start = speciesFromProperties(loadMeshFile(join(dir, 'next', 'frames', '0000.ply')).vertexData);
+    expect((await run('run', next, '--out', temp.path('next'), '--progress', 'none')).code).toBe(0);
+    const prev = decodeState(readFileSync(temp.path('fed', 'state.bin')), 'fed');
+    const start = speciesFromProperties(loadMeshFile(temp.path('next', 'frames', '0000.ply')).vertexData);
     for (let i = 0; i < n; i++) {
       expect(start.v[i]).toBeCloseTo(prev.state[2 * i + 1], 6); // float32 frame of the float64 state
       expect(start.u[i]).toBeCloseTo(i === 0 || i === 5 ? 0.5 : prev.state[2 * i], 6);
@@ -175,7 +168,7 @@ time: {scheme: explicit, end: 10}
   });
 
   it('refuses to overwrite a run directory without --force', async () => {
-    const r = await run('run', join(dir, 'small.yaml'), '--out', join(dir, 'small'));
+    const r = await run('run', temp.path('small.yaml'), '--out', temp.path('small'));
     expect(r.code).toBe(2);
     expect(r.err).toMatch(/already holds files; choose a new --out, add --force/);
   });
@@ -192,7 +185,7 @@ initial: {spots: {count: 4, radius: 0.04, values: {u: 0.5, v: 0.25}}}
 time: {scheme: explicit, end: 6000}
 output: {every: 1000, frames: false}
 `);
-    const out = join(dir, 'spots');
+    const out = temp.path('spots');
     expect((await run('run', file, '--out', out, '--progress', 'none')).code).toBe(0);
     const final = loadMeshFile(join(out, 'final.ply'));
     const v = speciesFromProperties(final.vertexData).v;
@@ -215,7 +208,7 @@ diffusion: {a: 0.01}
 initial: {values: {a: "1 + 0.1*z"}}
 time: {scheme: explicit, step: 0.01, end: 5}
 `);
-    const out = join(dir, 'blowup');
+    const out = temp.path('blowup');
     const r = await run('run', file, '--out', out, '--progress', 'none');
     expect(r.code).toBe(3);
     expect(r.err).toMatch(/blow-up at t=[0-9.]+ \(step \d+\): a became (Infinity|NaN) at vertex \d+/);
@@ -235,7 +228,7 @@ initial: {noise: 0.01}
 time: {step: 0.01, end: 1000, steadyState: 1e-6}
 output: {every: 5, frames: false}
 `);
-    const out = join(dir, 'steady');
+    const out = temp.path('steady');
     const r = await run('run', file, '--out', out, '--progress', 'none');
     expect(r.code).toBe(0);
     expect(r.err).toMatch(/steady state at t=/);
@@ -267,11 +260,11 @@ describe('bad scenarios each get their own clear error', () => {
   for (const [what, text, pattern] of cases) {
     it(what, async () => {
       const file = scenario(`bad-${what.replace(/\W+/g, '-')}.yaml`, text);
-      const r = await run('run', file, '--out', join(dir, 'never'));
+      const r = await run('run', file, '--out', temp.path('never'));
       expect(r.code, r.err).toBe(1);
       expect(r.err).toMatch(pattern);
       expect(r.err).not.toMatch(/\n\s+at /); // no stack trace
-      expect(existsSync(join(dir, 'never'))).toBe(false);
+      expect(existsSync(temp.path('never'))).toBe(false);
     });
   }
 });
@@ -285,10 +278,10 @@ describe('shipped example scenarios', () => {
       const plan = JSON.parse(r.out);
       expect(plan.warnings).toEqual([]);
       // a short run of the same scenario: copy it with an early end
-      const short = join(dir, `short-${name}`);
+      const short = temp.path(`short-${name}`);
       copyFileSync(join(examples, name), short);
       writeFileSync(short, readFileSync(short, 'utf8').replace(/\n  end: [0-9.e+]+/, `\n  end: ${2 * plan.time.step}`).replace(/mesh:\n/, 'mesh:\n').replace(/file: /, `file: ${examples}/`));
-      const ran = await run('run', short, '--out', join(dir, `ran-${name}`), '--progress', 'none');
+      const ran = await run('run', short, '--out', temp.path(`ran-${name}`), '--progress', 'none');
       expect(ran.code, ran.err).toBe(0);
     });
   }

@@ -1,7 +1,6 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync, existsSync } from 'node:fs';
+import { describe, expect, it } from 'vitest';
+import { readFileSync, existsSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
-import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { PNG } from 'pngjs';
 import { planSweep } from '../../solver/cli/sweepPlan.ts';
@@ -9,16 +8,10 @@ import { runSweepLocal } from '../../solver/cli/sweepPool.ts';
 import { sweepStatus } from '../../solver/cli/sweepTask.ts';
 import { runScenarioFile } from '../../solver/cli/runScenario.ts';
 import { runCli as run } from '../fixtures/cli.ts';
+import { useTempFiles } from '../fixtures/tempFiles.ts';
 
-let dir = '';
-beforeAll(() => { dir = mkdtempSync(join(tmpdir(), 'placode-sweep-run-')); });
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
-
-function write(name: string, text: string): string {
-  const file = join(dir, name);
-  writeFileSync(file, text);
-  return file;
-}
+const temp = useTempFiles('placode-sweep-run-');
+const write = temp.write;
 
 const BASE = `
 seed: 3
@@ -38,7 +31,7 @@ describe('placode sweep run (local worker pool)', () => {
     write('base.yaml', BASE);
     // a formula with an unknown name is refused when its run resolves the scenario (plan time resolves point 0 only)
     const sweep = write('pool.yaml', 'scenario: base.yaml\nvary:\n  kinetics.parameters.F: [0.03, 0.04, "0.03 + bogus"]\n  kinetics.parameters.k: [0.055, 0.062]\n');
-    const out = join(dir, 'pool');
+    const out = temp.path('pool');
     const { entries } = planSweep(sweep, { out, log: () => {} });
     const r = await runSweepLocal(out, { workers: 2, progress: 'none', log: () => {} });
     expect(r).toMatchObject({ total: 6, done: 4, skipped: 0, unfinished: 0, interrupted: false, workers: 2 });
@@ -46,7 +39,7 @@ describe('placode sweep run (local worker pool)', () => {
     expect(r.failed[0].message).toMatch(/kinetics\.parameters\.F/);
     expect(JSON.parse(readFileSync(join(out, entries[4].run, 'failure.json'), 'utf8')).message).toMatch(/bogus/);
     for (const e of entries.slice(0, 4)) {
-      const seq = join(dir, `seq-${e.id}`);
+      const seq = temp.path(`seq-${e.id}`);
       const o = await runScenarioFile(join(out, e.scenario), { out: seq, progress: 'none', log: () => {} });
       expect(o.reason).toBe('end');
       for (const f of RESULTS) expect(readFileSync(join(out, e.run, f)).equals(readFileSync(join(seq, f))), `${e.label} ${f}`).toBe(true);
@@ -63,7 +56,7 @@ describe('placode sweep run (local worker pool)', () => {
     write('base.yaml', BASE.replace('every: 20', 'every: 100'));
     // the second point runs 30 times longer: it is mid-run when the first finishes and the pool is stopped
     const sweep = write('resume.yaml', 'scenario: base.yaml\nvary:\n  time.end: [100, 3000]\n');
-    const out = join(dir, 'resume');
+    const out = temp.path('resume');
     const { entries } = planSweep(sweep, { out, log: () => {} });
     const first = await runSweepLocal(out, { workers: 2, progress: 'none', log: () => {}, stopAfter: 1 });
     expect(first).toMatchObject({ interrupted: true, done: 1, unfinished: 1 });
@@ -76,7 +69,7 @@ describe('placode sweep run (local worker pool)', () => {
     const record = JSON.parse(readFileSync(join(out, entries[1].run, 'record.json'), 'utf8'));
     expect(record.sessions.length).toBe(2); // resumed, not started again
     for (const e of entries) {
-      const seq = join(dir, `resume-seq-${e.id}`);
+      const seq = temp.path(`resume-seq-${e.id}`);
       await runScenarioFile(join(out, e.scenario), { out: seq, progress: 'none', log: () => {} });
       for (const f of ['state.bin', 'final.ply']) expect(readFileSync(join(out, e.run, f)).equals(readFileSync(join(seq, f))), `${e.label} ${f}`).toBe(true);
     }
@@ -85,7 +78,7 @@ describe('placode sweep run (local worker pool)', () => {
 
 describe('placode sweep collect', () => {
   it('one CSV row per run with its values, stability prediction and final metrics; a contact sheet on the grid', async () => {
-    const out = join(dir, 'pool'); // from the first test: 4 done, 2 failed
+    const out = temp.path('pool'); // from the first test: 4 done, 2 failed
     const r = await run('sweep', 'collect', out, '--thumbnail', '100');
     expect(r.code, r.err).toBe(0);
     const lines = readFileSync(join(out, 'sweep.csv'), 'utf8').trim().split('\n');
@@ -120,7 +113,7 @@ describe.skipIf(!haveSlurm)('placode sweep slurm (a real single-node Slurm)', ()
   it('the generated job array runs every point to completion, and collect sees every run', async () => {
     write('base.yaml', BASE);
     const sweep = write('slurm.yaml', 'scenario: base.yaml\nvary:\n  kinetics.parameters.F: [0.03, 0.04]\n  kinetics.parameters.k: [0.055, 0.062]\n');
-    const out = join(dir, 'slurm');
+    const out = temp.path('slurm');
     planSweep(sweep, { out, log: () => {} });
     const r = await run('sweep', 'slurm', out, '--time', '5', '--max-parallel', '2', '--submit');
     expect(r.code, r.err).toBe(0);

@@ -1,21 +1,14 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { expandSweep, applySweepPoint, axisValues } from '../../solver/io/expandSweep.ts';
 import { planSweep } from '../../solver/cli/sweepPlan.ts';
 import { arraySpec } from '../../solver/cli/sweepSlurm.ts';
 import { runCli as run } from '../fixtures/cli.ts';
+import { useTempFiles } from '../fixtures/tempFiles.ts';
 
-let dir = '';
-beforeAll(() => { dir = mkdtempSync(join(tmpdir(), 'placode-sweep-plan-')); });
-afterAll(() => rmSync(dir, { recursive: true, force: true }));
-
-function write(name: string, text: string): string {
-  const file = join(dir, name);
-  writeFileSync(file, text);
-  return file;
-}
+const temp = useTempFiles('placode-sweep-plan-');
+const write = temp.write;
 
 const BASE = `
 seed: 3
@@ -74,30 +67,30 @@ describe('placode sweep plan', () => {
   it('writes one manifest line per run, a scenario for each, and the same bytes when planned again', () => {
     write('base.yaml', BASE);
     const sweep = write('fk.yaml', `scenario: base.yaml\nvary:\n  kinetics.parameters.F: [0.02, 0.03, 0.04]\n  kinetics.parameters.k: {from: 0.05, to: 0.06, steps: 2}\n`);
-    const a = planSweep(sweep, { out: join(dir, 'plan-a'), log: () => {} });
-    const b = planSweep(sweep, { out: join(dir, 'plan-b'), log: () => {} });
-    const manifest = readFileSync(join(dir, 'plan-a', 'manifest.jsonl'), 'utf8');
-    expect(manifest).toBe(readFileSync(join(dir, 'plan-b', 'manifest.jsonl'), 'utf8'));
+    const a = planSweep(sweep, { out: temp.path('plan-a'), log: () => {} });
+    const b = planSweep(sweep, { out: temp.path('plan-b'), log: () => {} });
+    const manifest = readFileSync(temp.path('plan-a', 'manifest.jsonl'), 'utf8');
+    expect(manifest).toBe(readFileSync(temp.path('plan-b', 'manifest.jsonl'), 'utf8'));
     expect(a.entries.length).toBe(6);
     expect(new Set(a.entries.map((e) => e.id)).size).toBe(6);
     expect(b.entries.map((e) => e.values)).toEqual(a.entries.map((e) => e.values));
-    const first = JSON.parse(readFileSync(join(dir, 'plan-a', a.entries[0].scenario), 'utf8'));
+    const first = JSON.parse(readFileSync(temp.path('plan-a', a.entries[0].scenario), 'utf8'));
     expect(first.kinetics.parameters).toEqual({ F: 0.02, k: 0.05 });
     expect(first.mesh).toEqual({ shape: 'sphere', params: { radius: 0.25 }, vertices: 300 });
     // ids name the scenario, not the position: extending the grid keeps the old ids
     const wider = write('fk2.yaml', `scenario: base.yaml\nvary:\n  kinetics.parameters.F: [0.01, 0.02, 0.03, 0.04]\n  kinetics.parameters.k: {from: 0.05, to: 0.06, steps: 2}\n`);
-    const c = planSweep(wider, { out: join(dir, 'plan-a'), force: true, log: () => {} });
+    const c = planSweep(wider, { out: temp.path('plan-a'), force: true, log: () => {} });
     const ids = new Set(c.entries.map((e) => e.id));
     for (const e of a.entries) expect(ids.has(e.id)).toBe(true);
   });
 
   it('a scenario with a sweep section is a sweep of itself; mesh files are re-pointed from the scenario directories', async () => {
-    const r1 = await run('mesh', 'sphere', '--vertices', '300', '-o', join(dir, 'ball.ply'));
+    const r1 = await run('mesh', 'sphere', '--vertices', '300', '-o', temp.path('ball.ply'));
     expect(r1.code).toBe(0);
     const file = write('self.yaml', BASE.replace('mesh: {shape: sphere, params: {radius: 0.25}, vertices: 300}', 'mesh: {file: ball.ply}') + 'sweep:\n  vary:\n    kinetics.parameters.k: [0.055, 0.06]\n');
-    const p = planSweep(file, { out: join(dir, 'self'), log: () => {} });
+    const p = planSweep(file, { out: temp.path('self'), log: () => {} });
     expect(p.entries.length).toBe(2);
-    const sc = JSON.parse(readFileSync(join(dir, 'self', p.entries[1].scenario), 'utf8'));
+    const sc = JSON.parse(readFileSync(temp.path('self', p.entries[1].scenario), 'utf8'));
     expect(sc.mesh.file).toBe('../../ball.ply');
     expect(sc.sweep).toBeUndefined();
     // run: the sweep section is reported, and the scenario runs as written
@@ -108,7 +101,7 @@ describe('placode sweep plan', () => {
 
   it('the shipped example sweep plans its 3 × 4 grid, and run refuses it as a scenario', async () => {
     const example = join(__dirname, '..', '..', 'meshes', 'examples', 'sphere-spots-sweep.yaml');
-    const p = planSweep(example, { out: join(dir, 'example'), log: () => {} });
+    const p = planSweep(example, { out: temp.path('example'), log: () => {} });
     expect(p.entries.length).toBe(12);
     expect(p.plan.varying).toEqual(['kinetics.parameters.F', 'kinetics.parameters.k']);
     const r = await run('run', example, '--check');
@@ -130,15 +123,15 @@ describe('placode sweep plan', () => {
     ];
     for (const [k, [text, message]] of cases.entries()) {
       const f = write(`bad-${k}.yaml`, text);
-      const r = await run('sweep', 'plan', f, '--out', join(dir, `bad-${k}`));
+      const r = await run('sweep', 'plan', f, '--out', temp.path(`bad-${k}`));
       expect(r.code, text).not.toBe(0);
       expect(r.err, text).toMatch(message);
       expect(r.err).not.toMatch(/\n\s+at /); // no stack trace
     }
     // a planned directory is not overwritten without --force
     const ok = write('ok.yaml', 'scenario: base.yaml\nvary:\n  time.end: [10, 20]\n');
-    expect((await run('sweep', 'plan', ok, '--out', join(dir, 'ok'))).code).toBe(0);
-    const again = await run('sweep', 'plan', ok, '--out', join(dir, 'ok'));
+    expect((await run('sweep', 'plan', ok, '--out', temp.path('ok'))).code).toBe(0);
+    const again = await run('sweep', 'plan', ok, '--out', temp.path('ok'));
     expect(again.code).toBe(2);
     expect(again.err).toMatch(/already holds a planned sweep; add --force/);
   });

@@ -102,6 +102,14 @@ async function setUpText(page: Page, text: string) {
   }, before, { timeout: 60_000 });
 }
 
+/** A short brush stroke starting at (x, y). */
+async function stroke(page: Page, x: number, y: number) {
+  await page.mouse.move(x, y);
+  await page.mouse.down();
+  await page.mouse.move(x + 8, y + 4, { steps: 4 });
+  await page.mouse.up();
+}
+
 /** Pixels of the surface area of a screenshot of the stage: how many differ from the background, and how many colours. */
 async function stagePixels(page: Page): Promise<{ png: PNG; covered: number; colours: number }> {
   const png = PNG.sync.read(await page.locator('#stage').screenshot());
@@ -198,10 +206,7 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     const box = (await page.locator('#surface-canvas').boundingBox())!;
     const cx = box.x + box.width / 2, cy = box.y + box.height / 2;
     const before = await stagePixels(page);
-    await page.mouse.move(cx, cy);
-    await page.mouse.down();
-    await page.mouse.move(cx + 8, cy + 4, { steps: 4 });
-    await page.mouse.up();
+    await stroke(page, cx, cy);
     await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.shown!.max > 0.2, null, { timeout: 20_000 });
     expect((await state(page)).shown!.max).toBeCloseTo(0.25, 2); // the spot value of v
     await page.waitForTimeout(300);
@@ -211,10 +216,7 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     expect(change).toBeGreaterThan(0.002);
     expect(change).toBeLessThan(0.2); // a spot, not the whole surface
     await page.click('#tool-erase');
-    await page.mouse.move(cx, cy);
-    await page.mouse.down();
-    await page.mouse.move(cx + 8, cy + 4, { steps: 4 });
-    await page.mouse.up();
+    await stroke(page, cx, cy);
     await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.shown!.max < 0.05, null, { timeout: 20_000 });
     await close(page);
   }, 120_000);

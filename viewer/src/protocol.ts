@@ -4,6 +4,7 @@
  */
 import type { ScenarioProblem } from '../../solver/io/ScenarioError.ts';
 import type { MeshFileContents } from '../../solver/io/scenarioMesh.ts';
+import type { MeshStatistics } from '../../solver/mesh/meshStatistics.ts';
 
 export type ToWorker =
   | { type: 'load'; text: string; files: Record<string, MeshFileContents> }
@@ -15,15 +16,8 @@ export type ToWorker =
   | { type: 'brush'; vertices: Uint32Array; weights: Float32Array; mode: 'seed' | 'erase'; values: (number | null)[] }
   | { type: 'mode'; index: number };
 
-export interface SurfaceStats {
-  vertices: number;
-  triangles: number;
-  area: number;
-  genus: number;
-  boundaryLoops: number;
-  components: number;
-  meanEdge: number;
-}
+/** What the page shows of a surface: `placode mesh`'s statistics and the mean edge length. */
+export type SurfaceStats = Pick<MeshStatistics, 'vertices' | 'triangles' | 'area' | 'genus' | 'boundaryLoops' | 'components'> & { meanEdge: number };
 
 export interface StabilityView {
   species: string[];
