@@ -1,7 +1,9 @@
 import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import cliProgress from 'cli-progress';
+import { parse as parseYaml } from 'yaml';
 import { parseScenario } from '../io/readScenario.ts';
+import { isSweepFile } from '../io/Sweep.ts';
 import { resolveScenario, type ResolvedScenario } from '../io/resolveScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { RUN_FILES, frameName, encodeFrame, stateMetrics, metricsHeader, metricsRow, encodeState, decodeState, type SavedState } from '../io/runFiles.ts';
@@ -103,7 +105,13 @@ function readScenarioText(file: string): string {
 /** Read, check and resolve a scenario file (meshes and previous runs found relative to it). */
 export function loadScenarioFile(file: string): { text: string; resolved: ResolvedScenario } {
   const text = readScenarioText(file);
-  if (/^scenario\s*:/m.test(text) && /^vary\s*:/m.test(text) && !/^kinetics\s*:/m.test(text)) {
+  let raw: unknown;
+  try {
+    raw = parseYaml(text);
+  } catch {
+    raw = undefined; // parseScenario reports the syntax error with its line
+  }
+  if (isSweepFile(raw)) {
     throw new UsageError(`${file} is a sweep file (scenario: + vary:), not a scenario: expand it with placode sweep plan ${file} --out DIR`);
   }
   return { text, resolved: resolveScenario(parseScenario(text, file), file, nodeScenarioEnvironment(file)) };

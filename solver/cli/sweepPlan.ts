@@ -4,7 +4,7 @@ import { dirname, isAbsolute, join, relative, resolve } from 'node:path';
 import { parse as parseYaml } from 'yaml';
 import { parseCheckedYaml, parseScenario, compileSchema, pathText } from '../io/readScenario.ts';
 import { SCENARIO_SCHEMA, type Scenario } from '../io/Scenario.ts';
-import { SWEEP_FILE_SCHEMA, type SweepSpec } from '../io/Sweep.ts';
+import { SWEEP_FILE_SCHEMA, isSweepFile, type SweepSpec } from '../io/Sweep.ts';
 import { ScenarioError, type ScenarioProblem } from '../io/ScenarioError.ts';
 import { expandSweep, applySweepPoint, sweepAxisProblems, pointLabel, varyingPaths, type SweepPoint } from '../io/expandSweep.ts';
 import { resolveScenario } from '../io/resolveScenario.ts';
@@ -76,8 +76,7 @@ export function readSweep(file: string): { spec: SweepSpec; base: Scenario; base
   } catch {
     raw = undefined; // the checked parse below reports the syntax error with its line
   }
-  const isSweepFile = raw !== null && typeof raw === 'object' && 'scenario' in raw && !('kinetics' in raw);
-  if (isSweepFile) {
+  if (isSweepFile(raw)) {
     const { data, locate } = parseCheckedYaml(text, file, sweepFileCheck, 'a sweep file must be a mapping with scenario and vary');
     const spec = data as unknown as SweepSpec;
     checkAxes(spec, file, (p) => locate(p));

@@ -73,3 +73,8 @@ export const SWEEP_FILE_SCHEMA = {
   required: ['scenario', 'vary'],
   properties: { scenario: { type: 'string', minLength: 1 }, ...sweepProperties },
 };
+
+/** Whether parsed YAML is a sweep file (a base `scenario` to vary) rather than a scenario. */
+export function isSweepFile(data: unknown): boolean {
+  return data !== null && typeof data === 'object' && 'scenario' in data && !('kinetics' in data);
+}
