@@ -256,6 +256,7 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     // lengths grow as e^{rt}: the growth factor shown is the square root of the area ratio
     const shown = Number(/growth ×([0-9.]+)/.exec((await page.textContent('#status-growth'))!)![1]);
     expect(shown).toBeCloseTo(Math.exp(0.002 * 400), 2);
+    expect(end.shown!.extent / start.shown!.extent).toBeCloseTo(Math.exp(0.002 * 400), 2); // and the surface drawn has grown with it
     await close(page);
   }, 90_000);
 

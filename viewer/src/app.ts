@@ -307,6 +307,7 @@ form.root.querySelector('#use-text')!.addEventListener('click', () => { form.use
 
 function setUp() {
   const text = form.scenarioText();
+  byId('problems').replaceChildren(el('p', { class: 'info', text: 'setting up: building the mesh and checking the scenario…' }));
   send({ type: 'load', text, files: openedFiles });
 }
 
@@ -423,6 +424,13 @@ async function showFrame(index: number) {
 }
 slider.addEventListener('input', () => void showFrame(Number(slider.value)));
 byId('load-run').addEventListener('click', () => void loadServerRun());
+/** the scenario text of the run directory on the timeline (from its record) */
+let runScenarioText: string | undefined;
+byId('run-scenario').addEventListener('click', () => {
+  if (!runScenarioText) return;
+  form.useText(runScenarioText);
+  say('the run\'s scenario is in the text box; press “Set up from text” to run it here (a mesh file it names must be opened first)');
+});
 
 async function loadServerRun() {
   let info: { name: string; frames: { file: string; time: number }[]; final?: string; scenarioText?: string };
@@ -443,7 +451,8 @@ async function loadServerRun() {
   runRange = undefined;
   shownTriangles = undefined;
   updateTimeline();
-  if (info.scenarioText) byId('run-scenario').hidden = false, (byId('run-scenario') as HTMLButtonElement).onclick = () => { form.useText(info.scenarioText); say('the run\'s scenario is in the text box; press “Set up from text” to run it here'); };
+  runScenarioText = info.scenarioText;
+  byId('run-scenario').hidden = !runScenarioText;
   await showFrame(0);
   say(`loaded run ${info.name}: ${timeline.length} frames`);
 }
