@@ -61,4 +61,5 @@ export async function runDemo(outDir: string): Promise<void> {
   const figure = runFigure(runDir, { out: join(outDir, 'paddle-sheet.png'), sheet: true, species: 'u', colormap: 'magma', view: 'top', title: 'Growing limb-bud paddle: activator u', width: 1400, height: 1000, dpi: 150, force: true });
   say(`  figure of every frame: ${figure}`);
   say(`  outputs are in ${resolve(outDir)} (open the .ply files in any mesh viewer; colours show u)`);
+  say(`  watch the run grow in the browser: npx placode view ${join(outDir, 'paddle-run')}`);
 }
