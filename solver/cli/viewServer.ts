@@ -114,10 +114,10 @@ function sendJson(res: ServerResponse, data: unknown) {
   res.end(body);
 }
 
-/** What the page needs of a run directory: its frames with their times, the final state, its scenario. */
-export function runListing(runDir: string): { name: string; frames: { file: string; time: number; step: number }[]; final?: string; scenarioText?: string; status?: string } {
+/** What the page needs of a run directory: its frames with their times, the final state, its scenario and its painting. */
+export function runListing(runDir: string): { name: string; frames: { file: string; time: number; step: number }[]; final?: string; scenarioText?: string; status?: string; output?: unknown } {
   const recordFile = join(runDir, RUN_FILES.record);
-  let record: { frames?: { file: string; time: number; step: number }[]; scenarioText?: string; status?: string } = {};
+  let record: { frames?: { file: string; time: number; step: number }[]; scenarioText?: string; status?: string; resolved?: { output?: unknown } } = {};
   try {
     record = JSON.parse(readFileSync(recordFile, 'utf8'));
   } catch {
@@ -130,5 +130,6 @@ export function runListing(runDir: string): { name: string; frames: { file: stri
     final: existsSync(join(runDir, RUN_FILES.final)) ? RUN_FILES.final : undefined,
     scenarioText: record.scenarioText,
     status: record.status,
+    output: record.resolved?.output,
   };
 }

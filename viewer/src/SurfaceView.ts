@@ -34,7 +34,8 @@ export class SurfaceView {
   /** milliseconds the last brush dab took to pick the surface and gather its vertices */
   lastBrushMs = 0;
   private positions: Float64Array = new Float64Array(0);
-  private framed = false;
+  /** bounding radius of the surface when the camera was last framed on it */
+  private framedRadius = 0;
   private drawRequested = false;
 
   constructor(private readonly container: HTMLElement) {
@@ -68,7 +69,7 @@ export class SurfaceView {
     return this.positions.length / 3;
   }
 
-  /** A new surface (new connectivity): rebuild the geometry; frame the camera on the first one or when asked. */
+  /** A new surface (new connectivity): rebuild the geometry; frame the camera on the first one or when asked; zoom out if it outgrew the view. */
   setSurface(positions: Float64Array, triangles: Uint32Array, reframe = false): void {
     this.geometry.dispose();
     this.geometry = new THREE.BufferGeometry();
@@ -81,7 +82,8 @@ export class SurfaceView {
     this.surface.geometry = this.geometry;
     this.wire.geometry = this.geometry;
     this.bvhStale = true;
-    if (reframe || !this.framed) this.frame();
+    if (reframe || !this.framedRadius) this.frame();
+    else this.keepInView();
     this.draw();
   }
 
@@ -94,7 +96,23 @@ export class SurfaceView {
     this.geometry.computeVertexNormals();
     this.geometry.computeBoundingSphere();
     this.bvhStale = true;
+    this.keepInView();
     this.draw();
+  }
+
+  /** A growing surface that has outgrown the view by a fifth: step the camera back along its line of sight. */
+  private keepInView(): void {
+    const s = this.geometry.boundingSphere;
+    if (!s || s.radius <= 1.2 * this.framedRadius) return;
+    const scale = s.radius / this.framedRadius;
+    this.framedRadius = s.radius;
+    const offset = this.camera.position.clone().sub(this.controls.target).multiplyScalar(scale);
+    this.controls.target.copy(s.center);
+    this.camera.position.copy(s.center).add(offset);
+    this.camera.far *= scale;
+    this.camera.near *= scale;
+    this.camera.updateProjectionMatrix();
+    this.controls.update();
   }
 
   /** sRGB bytes per vertex → the colour attribute (linear, as three.js lights it). */
@@ -115,7 +133,7 @@ export class SurfaceView {
   frame(): void {
     const s = this.geometry.boundingSphere;
     if (!s) return;
-    this.framed = true;
+    this.framedRadius = s.radius;
     const d = s.radius / Math.sin(THREE.MathUtils.degToRad(this.camera.fov / 2)) * 1.1;
     this.controls.target.copy(s.center);
     this.camera.position.copy(s.center).add(new THREE.Vector3(0.55, -0.75, 0.45).normalize().multiplyScalar(d));

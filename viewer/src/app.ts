@@ -109,7 +109,7 @@ function paint() {
   const frame = app.view === 'live' ? live : shown;
   if (!frame) return;
   if (frame.mesh.triangles !== shownTriangles) {
-    const reframe = shownTriangles === undefined || frame.mesh.triangles.length < shownTriangles.length / 4 - 1;
+    const reframe = shownTriangles === undefined;
     shownTriangles = frame.mesh.triangles;
     shownPositions = frame.mesh.positions;
     view.setSurface(frame.mesh.positions, frame.mesh.triangles, reframe);
@@ -399,7 +399,7 @@ function updateTimeline() {
   app.frames = timeline.length;
   slider.max = String(Math.max(0, timeline.length - 1));
   if (app.view !== 'frame') slider.value = slider.max;
-  byId('timeline-label').textContent = timeline.length ? `${timeline.length} frame(s) of the ${timelineSource === 'server' ? `recorded run ${app.serverRun?.name ?? ''}` : 'current run'}` : 'no frames yet';
+  byId('timeline-label').textContent = timeline.length ? `${timeline.length} frame(s) of the ${timelineSource === 'server' ? `recorded run ${runName}` : 'current run'}` : 'no frames yet';
 }
 async function showFrame(index: number) {
   const f = timeline[index];
@@ -418,14 +418,16 @@ async function showFrame(index: number) {
   }
   shown = f;
   app.view = 'frame';
-  if (timelineSource === 'server') setSpecies(Object.keys(f.fields));
+  if (timelineSource === 'server') setSpecies(Object.keys(f.fields), preferredSpecies);
   byId('timeline-label').textContent = `frame ${index + 1} of ${timeline.length}, t = ${fmt(f.time)}`;
   paint();
 }
 slider.addEventListener('input', () => void showFrame(Number(slider.value)));
 byId('load-run').addEventListener('click', () => void loadServerRun());
-/** the scenario text of the run directory on the timeline (from its record) */
+/** the scenario text of the run directory on the timeline (from its record), and the species it painted */
 let runScenarioText: string | undefined;
+let preferredSpecies: string | undefined;
+let runName = '';
 byId('run-scenario').addEventListener('click', () => {
   if (!runScenarioText) return;
   form.useText(runScenarioText);
@@ -433,7 +435,7 @@ byId('run-scenario').addEventListener('click', () => {
 });
 
 async function loadServerRun() {
-  let info: { name: string; frames: { file: string; time: number }[]; final?: string; scenarioText?: string };
+  let info: { name: string; frames: { file: string; time: number }[]; final?: string; scenarioText?: string; output?: { colour?: string; colormap?: string } };
   try {
     const res = await fetch('api/run');
     if (!res.ok) throw new Error(`${res.status} ${res.statusText}`);
@@ -447,13 +449,19 @@ async function loadServerRun() {
   const empty: Mesh = { positions: new Float64Array(0), triangles: new Uint32Array(0) };
   timeline = info.frames.map((f) => ({ time: f.time, mesh: empty, fields: {}, file: f.file }));
   timelineSource = 'server';
-  app.serverRun = { name: info.name, frames: timeline.length };
+  runName = info.name;
   runRange = undefined;
   shownTriangles = undefined;
   updateTimeline();
   runScenarioText = info.scenarioText;
   byId('run-scenario').hidden = !runScenarioText;
+  if (info.output?.colormap && (COLORMAP_NAMES as string[]).includes(info.output.colormap)) colormapSelect.value = info.output.colormap;
+  preferredSpecies = info.output?.colour;
+  speciesSelect.value = '';
+  // frame the camera on the last frame (a growing run's largest), then show the first
+  await showFrame(timeline.length - 1);
   await showFrame(0);
+  app.serverRun = { name: info.name, frames: timeline.length };
   say(`loaded run ${info.name}: ${timeline.length} frames`);
 }
 
