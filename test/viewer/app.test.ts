@@ -12,6 +12,9 @@ import { ensureViewerBuilt } from '../../solver/cli/viewerBuild.ts';
 import { runScenarioFile } from '../../solver/cli/runScenario.ts';
 import { parseMeshFile } from '../../solver/io/parseMeshFile.ts';
 import { speciesFromProperties } from '../../solver/io/runFiles.ts';
+import { buildShape } from '../../meshes/shapes/index.ts';
+import { writeObj } from '../../solver/io/writeObj.ts';
+import { writeStl } from '../../solver/io/writeStl.ts';
 
 let dir = '';
 let browser: Browser;
@@ -296,6 +299,28 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     expect(worst).toBeLessThan(1e-9); // the same solver code in both, so the same numbers
     await close(page);
   }, 120_000);
+
+  it('opens mesh files through the button (OBJ) and by dropping them on the surface (STL): statistics shown, set up on them', async () => {
+    const page = await open(appUrl);
+    const torus = buildShape({ shape: 'torus', params: { R: 0.3, r: 0.12 }, vertices: 1500 }).mesh;
+    const n = torus.positions.length / 3;
+    await page.setInputFiles('#open-mesh', { name: 'ring.obj', mimeType: 'text/plain', buffer: Buffer.from(writeObj(torus)) });
+    await page.waitForFunction((count) => (window as unknown as { __placode: AppState }).__placode.vertices === count, n, { timeout: 30_000 });
+    expect(await page.textContent('#tissue-stats')).toMatch(new RegExp(`^${n} vertices · ${torus.triangles.length / 3} triangles · .* genus 1`));
+    expect((await state(page)).messages.some((m) => /opened ring\.obj/.test(m))).toBe(true);
+    expect(await page.inputValue('#scenario-text')).toMatch(/file: ring\.obj/);
+    // an STL stores every triangle's corners apart: the importer welds them back to the same vertices
+    const ball = buildShape({ shape: 'sphere', params: { radius: 0.25 }, vertices: 800 }).mesh;
+    const stl = Array.from(writeStl(ball));
+    await page.evaluate((bytes) => {
+      const data = new DataTransfer();
+      data.items.add(new File([new Uint8Array(bytes)], 'ball.stl', { type: 'model/stl' }));
+      document.querySelector('#stage')!.dispatchEvent(new DragEvent('drop', { dataTransfer: data, bubbles: true, cancelable: true }));
+    }, stl);
+    await page.waitForFunction((count) => (window as unknown as { __placode: AppState }).__placode.vertices === count, ball.positions.length / 3, { timeout: 30_000 });
+    expect(await page.textContent('#tissue-stats')).toMatch(/genus 0/);
+    await close(page);
+  }, 90_000);
 
   it('bad files, bad formulas and impossible parameters each get a message, and the current state stays', async () => {
     const page = await open(appUrl);
