@@ -122,6 +122,7 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
     bar?.stop();
   }
   outcome.unfinished += todo.length - finished;
+  outcome.failed.sort((a, b) => a.index - b.index);
   outcome.seconds = (performance.now() - t0) / 1000;
   return outcome;
 }
