@@ -378,12 +378,13 @@ export async function main(argv: string[]): Promise<number> {
     .option('--all', 'every run, finished or not')
     .option('--retry-failed', 'include failed runs and run them again')
     .option('--launcher <command>', 'how compute nodes start placode (default: this node and placode by absolute path)')
+    .option('--max-array-size <n>', "the cluster's MaxArraySize (default: from scontrol, else 1001); larger sweeps get several arrays")
     .option('--submit', 'submit with sbatch')
-    .action((dir: string, o: { partition?: string; time?: string; mem?: string; maxParallel?: string; all?: boolean; retryFailed?: boolean; launcher?: string; submit?: boolean }) => {
-      const r = writeSlurmArray(dir, { ...o, maxParallel: parseCount(o.maxParallel, '--max-parallel', 1) });
-      process.stdout.write(`wrote ${r.script} (${r.indices.length} array tasks)\n`);
-      if (r.jobId) process.stdout.write(`submitted job ${r.jobId}; follow it with: placode sweep status ${dir}\n`);
-      else process.stdout.write(`submit it with: sbatch ${r.script}\n`);
+    .action((dir: string, o: { partition?: string; time?: string; mem?: string; maxParallel?: string; all?: boolean; retryFailed?: boolean; launcher?: string; maxArraySize?: string; submit?: boolean }) => {
+      const r = writeSlurmArray(dir, { ...o, maxParallel: parseCount(o.maxParallel, '--max-parallel', 1), maxArraySize: parseCount(o.maxArraySize, '--max-array-size', 1) });
+      process.stdout.write(`wrote ${r.scripts.join(', ')} (${r.indices.length} array tasks)\n`);
+      if (r.jobIds.length) process.stdout.write(`submitted job${r.jobIds.length > 1 ? 's' : ''} ${r.jobIds.join(', ')}; follow with: placode sweep status ${dir}\n`);
+      else process.stdout.write(`submit with: ${r.scripts.map((f) => `sbatch ${f}`).join(' && ')}\n`);
     });
   sweep
     .command('collect')

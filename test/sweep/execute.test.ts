@@ -115,12 +115,21 @@ describe.skipIf(!haveSlurm)('placode sweep slurm (a real single-node Slurm)', ()
     const sweep = write('slurm.yaml', 'scenario: base.yaml\nvary:\n  kinetics.parameters.F: [0.03, 0.04]\n  kinetics.parameters.k: [0.055, 0.062]\n');
     const out = temp.path('slurm');
     planSweep(sweep, { out, log: () => {} });
-    const r = await run('sweep', 'slurm', out, '--time', '5', '--max-parallel', '2', '--submit');
-    expect(r.code, r.err).toBe(0);
-    expect(r.out).toMatch(/submitted job \d+/);
-    const script = readFileSync(join(out, 'slurm', 'array.sbatch'), 'utf8');
+    // written only: one array over the manifest indices
+    const plain = await run('sweep', 'slurm', out, '--time', '5', '--max-parallel', '2');
+    expect(plain.code, plain.err).toBe(0);
+    const script = readFileSync(temp.path('slurm', 'slurm', 'array.sbatch'), 'utf8');
     expect(script).toMatch(/#SBATCH --array=0-3%2/);
+    expect(script).toMatch(/#SBATCH --time=5/);
     expect(script).toMatch(/sweep task .* --index "\$SLURM_ARRAY_TASK_ID"/);
+    // submitted with a MaxArraySize of 3: indices 0–2 in one array, index 3 as task 0 of a second with offset 3
+    const r = await run('sweep', 'slurm', out, '--time', '5', '--max-parallel', '2', '--max-array-size', '3', '--submit');
+    expect(r.code, r.err).toBe(0);
+    expect(r.out).toMatch(/submitted jobs \d+, \d+/);
+    expect(readFileSync(temp.path('slurm', 'slurm', 'array-1.sbatch'), 'utf8')).toMatch(/#SBATCH --array=0-2%2/);
+    const second = readFileSync(temp.path('slurm', 'slurm', 'array-2.sbatch'), 'utf8');
+    expect(second).toMatch(/#SBATCH --array=0%2/);
+    expect(second).toMatch(/--index "\$\(\(3 \+ SLURM_ARRAY_TASK_ID\)\)"/);
     const deadline = Date.now() + 150_000;
     let counts = sweepStatus(out).counts;
     while (counts.done + counts.failed < 4 && Date.now() < deadline) {

@@ -3,7 +3,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { expandSweep, applySweepPoint, axisValues } from '../../solver/io/expandSweep.ts';
 import { planSweep } from '../../solver/cli/sweepPlan.ts';
-import { arraySpec } from '../../solver/cli/sweepSlurm.ts';
+import { arraySpec, arrayChunks } from '../../solver/cli/sweepSlurm.ts';
 import { runCli as run } from '../fixtures/cli.ts';
 import { useTempFiles } from '../fixtures/tempFiles.ts';
 
@@ -60,6 +60,8 @@ describe('sweep expansion', () => {
   it('Slurm array indices are written as ranges', () => {
     expect(arraySpec([0, 1, 2, 3, 7, 9, 10, 11, 12])).toBe('0-3,7,9-12');
     expect(arraySpec([5])).toBe('5');
+    // task ids stay below MaxArraySize: indices 0–9 (3 and 4 finished) with a limit of 4
+    expect(arrayChunks([0, 1, 2, 5, 6, 7, 8, 9], 4)).toEqual([{ offset: 0, ids: [0, 1, 2] }, { offset: 4, ids: [1, 2, 3] }, { offset: 8, ids: [0, 1] }]);
   });
 });
 
