@@ -2,7 +2,7 @@ import { Worker } from 'node:worker_threads';
 import { availableParallelism } from 'node:os';
 import cliProgress from 'cli-progress';
 import { readManifest } from './sweepPlan.ts';
-import { runStatus, type TaskOutcome } from './sweepTask.ts';
+import { runStatus, markFailed, type TaskOutcome } from './sweepTask.ts';
 
 export interface PoolOptions {
   /** worker threads (default: every core) */
@@ -86,35 +86,47 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
     if (options.stopAfter !== undefined && finished >= options.stopAfter) stopAll();
   };
   try {
-    await new Promise<void>((resolveAll, rejectAll) => {
+    await new Promise<void>((resolveAll) => {
       let next = 0;
-      let alive = workers;
-      const feed = (w: Worker) => {
-        if (stopping || next >= todo.length) {
-          void w.terminate();
-          return;
-        }
-        w.postMessage({ type: 'run', index: todo[next++] });
-      };
-      for (let k = 0; k < workers; k++) {
+      let alive = 0;
+      let crashes = 0;
+      /** Start a worker thread; one that dies mid-run records that run as failed and is replaced. */
+      const spawn = () => {
         const w = new Worker(new URL('./sweepWorker.mjs', import.meta.url), { workerData: { dir, retryFailed: options.retryFailed ?? false } });
         pool.push(w);
-        w.on('message', (m: { type: string; outcome?: TaskOutcome; index?: number; message?: string }) => {
-          if (m.type === 'ready') {
-            feed(w);
-          } else if (m.type === 'done') {
-            record(m.outcome!);
-            feed(w);
-          } else if (m.type === 'error') {
-            record({ index: m.index!, id: entries[m.index!].id, state: 'failed', message: m.message! });
-            feed(w);
+        alive++;
+        let current: number | undefined;
+        let crashed: string | undefined;
+        const feed = () => {
+          if (stopping || next >= todo.length) {
+            current = undefined;
+            void w.terminate();
+            return;
           }
+          current = todo[next++];
+          w.postMessage({ type: 'run', index: current });
+        };
+        w.on('message', (m: { type: string; outcome?: TaskOutcome; index?: number; message?: string }) => {
+          if (m.type === 'ready') feed();
+          else if (m.type === 'done') { record(m.outcome!); feed(); }
+          else if (m.type === 'error') { record({ index: m.index!, id: entries[m.index!].id, state: 'failed', message: m.message! }); feed(); }
         });
-        w.on('error', (e) => rejectAll(new Error(`a sweep worker failed: ${e.message}`)));
-        w.on('exit', () => {
-          if (--alive === 0) resolveAll();
+        w.on('error', (e) => { crashed = e.message; });
+        w.on('exit', (code) => {
+          alive--;
+          if (current !== undefined) {
+            const message = `the worker thread running it died (${crashed ?? `exit code ${code}`}); the other runs went on`;
+            const index = current;
+            current = undefined;
+            markFailed(dir, entries[index], message);
+            record({ index, id: entries[index].id, state: 'failed', message });
+            // replace it, unless workers die over and over (then something is wrong with every run)
+            if (++crashes <= workers * 2 && !stopping && next < todo.length) spawn();
+          }
+          if (alive === 0) resolveAll();
         });
-      }
+      };
+      for (let k = 0; k < workers; k++) spawn();
     });
   } finally {
     process.off('SIGINT', onSignal);

@@ -108,12 +108,18 @@ export async function runSweepTask(dirArg: string, index: number, options: TaskO
   } catch (e) {
     const message = (e as Error).message;
     log(`failed: ${message}`);
-    mkdirSync(run, { recursive: true });
-    writeFileAtomic(join(run, SWEEP_FILES.failure), JSON.stringify({ index, id: entry.id, message, host: hostname(), time: new Date().toISOString() }, null, 2) + '\n', true);
+    markFailed(dir, entry, message);
     return { index, id: entry.id, state: 'failed', skipped: false, message, seconds: seconds() };
   }
   const after = runStatus(dir, entry);
   return { index, id: entry.id, state: after.state, skipped: false, message: outcome.message, seconds: seconds() };
+}
+
+/** Record a run as failed (its failure.json), with the error that stopped it. */
+export function markFailed(dir: string, entry: ManifestEntry, message: string): void {
+  const run = join(dir, entry.run);
+  mkdirSync(run, { recursive: true });
+  writeFileAtomic(join(run, SWEEP_FILES.failure), JSON.stringify({ index: entry.index, id: entry.id, message, host: hostname(), time: new Date().toISOString() }, null, 2) + '\n', true);
 }
 
 /** Counts of every state, and each run's state, of a planned sweep. */
