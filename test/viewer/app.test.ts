@@ -153,7 +153,13 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     expect(area).toBeCloseTo(4 * Math.PI ** 2 * 0.3 * 0.12, 1); // a torus: 4π²Rr
     const before = await stagePixels(page);
     expect(before.covered).toBeGreaterThan(0.15);
-    await page.click('#run');
+    // edges drawn over the surface change the picture
+    await page.check('#wireframe');
+    await page.waitForTimeout(200);
+    expect(pixelChange(before.png, (await stagePixels(page)).png)).toBeGreaterThan(0.01); // unchanged state: only the edges differ
+    await page.uncheck('#wireframe');
+    await page.evaluate(() => (document.activeElement as HTMLElement | null)?.blur()); // keys go to the page, not the checkbox
+    await page.keyboard.press('Space'); // start
     await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.step >= 300, null, { timeout: 90_000 });
     await page.click('#run'); // pause
     await page.waitForFunction(() => !(window as unknown as { __placode: AppState }).__placode.running);

@@ -495,6 +495,14 @@ byId('export-ply').addEventListener('click', () => void exportMesh('ply'));
 byId('export-glb').addEventListener('click', () => void exportMesh('glb'));
 byId('save-scenario').addEventListener('click', () => download('scenario.yaml', form.scenarioText(), 'text/yaml'));
 
+// ---- keys: space starts and pauses, "." takes the steps of the Step button (not while typing)
+document.addEventListener('keydown', (e) => {
+  const t = e.target as HTMLElement;
+  if (e.ctrlKey || e.metaKey || e.altKey || t.closest('input, textarea, select, [contenteditable]')) return;
+  if (e.key === ' ') { e.preventDefault(); byId('run').click(); }
+  else if (e.key === '.') byId('step').click();
+});
+
 // ---- tabs
 for (const tab of document.querySelectorAll<HTMLButtonElement>('[data-tab]')) {
   tab.addEventListener('click', () => {
