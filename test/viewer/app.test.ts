@@ -68,6 +68,7 @@ interface AppState {
   ready: boolean; loaded: boolean; running: boolean; step: number; time: number; vertices: number; frames: number; view: string; problems: string[]; messages: string[];
   shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number } | null;
   serverRun: { name: string; frames: number } | null;
+  strokes: number;
 }
 const state = (page: Page) => page.evaluate(() => (window as unknown as { __placode: AppState }).__placode) as Promise<AppState>;
 
@@ -266,6 +267,31 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     const shown = Number(/growth ×([0-9.]+)/.exec((await page.textContent('#status-growth'))!)![1]);
     expect(shown).toBeCloseTo(Math.exp(0.002 * 400), 2);
     expect(end.shown!.extent / start.shown!.extent).toBeCloseTo(Math.exp(0.002 * 400), 2); // and the surface drawn has grown with it
+    await close(page);
+  }, 90_000);
+
+  it('the brush follows a growing surface: a dab near the rim of the grown sphere hits it', async () => {
+    const page = await open(appUrl);
+    await setUpText(page, GROWING.replace(', refine: {edgeGrowth: 1.4}', ''));
+    // a dab before the run builds the brush's BVH on the small sphere
+    await page.click('#tool-seed');
+    const box = (await page.locator('#surface-canvas').boundingBox())!;
+    await stroke(page, box.x + box.width / 2, box.y + box.height / 2);
+    await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.strokes > 0);
+    await page.click('#run');
+    await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.messages[0]?.includes('reached the end time'), null, { timeout: 60_000 });
+    // the rim of the grown sphere on screen, along the middle row of the stage (the colour bar excluded)
+    const shot = await stagePixels(page);
+    const row = Math.round(shot.png.height / 2);
+    let right = 0;
+    for (let x = 0; x < shot.png.width - 120; x++) {
+      const o = 4 * (row * shot.png.width + x);
+      if (Math.abs(shot.png.data[o] - 0xf4) + Math.abs(shot.png.data[o + 1] - 0xf2) + Math.abs(shot.png.data[o + 2] - 0xee) > 12) right = x;
+    }
+    const stage = (await page.locator('#stage').boundingBox())!;
+    const strokes = (await state(page)).strokes;
+    await stroke(page, stage.x + (shot.png.width / 2 + 0.85 * (right - shot.png.width / 2)) * (stage.width / shot.png.width), stage.y + stage.height / 2);
+    await page.waitForFunction((n) => (window as unknown as { __placode: AppState }).__placode.strokes > n, strokes, { timeout: 10_000 });
     await close(page);
   }, 90_000);
 

@@ -26,6 +26,8 @@ export class SurfaceView {
   private readonly wire: THREE.Mesh;
   private readonly cursor: THREE.Mesh;
   private bvhStale = true;
+  /** the surface moved (same triangles): the BVH's boxes need refitting, not rebuilding */
+  private bvhMoved = false;
   private readonly raycaster = new THREE.Raycaster();
   /** brush radius as a fraction of the surface's bounding radius */
   brushRadius = 0.06;
@@ -76,7 +78,8 @@ export class SurfaceView {
     this.positions = positions;
     this.geometry.setAttribute('position', new THREE.BufferAttribute(new Float32Array(positions), 3));
     this.geometry.setAttribute('color', new THREE.BufferAttribute(new Float32Array(positions.length).fill(0.8), 3));
-    this.geometry.setIndex(new THREE.BufferAttribute(triangles, 1));
+    // a copy: building the BVH reorders the index in place, and the triangles belong to the frame (exports, timeline)
+    this.geometry.setIndex(new THREE.BufferAttribute(triangles.slice(), 1));
     this.geometry.computeVertexNormals();
     this.geometry.computeBoundingSphere();
     this.surface.geometry = this.geometry;
@@ -95,7 +98,7 @@ export class SurfaceView {
     attr.needsUpdate = true;
     this.geometry.computeVertexNormals();
     this.geometry.computeBoundingSphere();
-    this.bvhStale = true;
+    this.bvhMoved = true;
     this.keepInView();
     this.draw();
   }
@@ -192,6 +195,10 @@ export class SurfaceView {
     if (this.bvhStale) {
       this.geometry.boundsTree = new MeshBVH(this.geometry);
       this.bvhStale = false;
+      this.bvhMoved = false;
+    } else if (this.bvhMoved) {
+      this.geometry.boundsTree!.refit();
+      this.bvhMoved = false;
     }
     const rect = this.renderer.domElement.getBoundingClientRect();
     const ndc = new THREE.Vector2(((clientX - rect.left) / rect.width) * 2 - 1, -((clientY - rect.top) / rect.height) * 2 + 1);
@@ -201,8 +208,12 @@ export class SurfaceView {
     return hit && hit.faceIndex !== undefined && hit.faceIndex !== null ? { point: hit.point, face: hit.faceIndex } : undefined;
   }
 
-  /** Vertices within the brush of a point, weighted 1 at the centre to 0 at the rim (smooth). */
-  brushAt(point: THREE.Vector3): BrushStroke {
+  /**
+   * Vertices within the brush of a point on triangle `face`, weighted 1 at the
+   * centre to 0 at the rim (smooth); a brush smaller than the triangles paints
+   * at least the triangle's nearest corner.
+   */
+  brushAt(point: THREE.Vector3, face: number): BrushStroke {
     const r = this.brushRadius * (this.geometry.boundingSphere?.radius ?? 1);
     const sphere = new THREE.Sphere(point, r);
     const index = this.geometry.index!.array as Uint32Array;
@@ -221,6 +232,15 @@ export class SurfaceView {
         return false;
       },
     });
+    if (!found.size) {
+      let best = -1, bestD = Infinity;
+      for (let c = 0; c < 3; c++) {
+        const i = index[3 * face + c];
+        const d = (p[3 * i] - point.x) ** 2 + (p[3 * i + 1] - point.y) ** 2 + (p[3 * i + 2] - point.z) ** 2;
+        if (d < bestD) { bestD = d; best = i; }
+      }
+      found.set(best, 1);
+    }
     return { vertices: Uint32Array.from(found.keys()), weights: Float32Array.from(found.values()) };
   }
 
@@ -238,7 +258,7 @@ export class SurfaceView {
       }
       this.draw();
       if (hit && down) {
-        const stroke = this.brushAt(hit.point);
+        const stroke = this.brushAt(hit.point, hit.face);
         this.lastBrushMs = performance.now() - t0;
         if (stroke.vertices.length) this.onStroke?.(stroke);
       }

@@ -50,9 +50,11 @@ interface AppState {
   serverRun: { name: string; frames: number } | null;
   /** milliseconds of the last brush dab (picking and gathering vertices; the BVH is built on the first) */
   brushMs: number;
+  /** brush dabs that hit the surface and were sent to the worker */
+  strokes: number;
 }
 
-const app: AppState = { ready: false, loaded: false, running: false, time: 0, step: 0, vertices: 0, species: [], frames: 0, view: 'live', problems: [], messages: [], stability: null, shown: null, stepsPerSecond: 0, serverRun: null, brushMs: 0 };
+const app: AppState = { ready: false, loaded: false, running: false, time: 0, step: 0, vertices: 0, species: [], frames: 0, view: 'live', problems: [], messages: [], stability: null, shown: null, stepsPerSecond: 0, serverRun: null, brushMs: 0, strokes: 0 };
 (window as unknown as { __placode: AppState }).__placode = app;
 
 const worker = new Worker(new URL('./simulationWorker.ts', import.meta.url), { type: 'module' });
@@ -375,6 +377,7 @@ view.onStroke = (stroke) => {
   const values = view.brushing === 'seed' ? form.spotValuesBySpecies() : rest;
   if (view.brushing === 'seed' && values.every((v) => v === null)) return say('give the spot values (Start section) that the seed brush paints', 'error');
   send({ type: 'brush', vertices: stroke.vertices, weights: stroke.weights, mode: view.brushing === 'erase' ? 'erase' : 'seed', values }, [stroke.vertices.buffer, stroke.weights.buffer]);
+  app.strokes++;
 };
 
 // ---- stability
