@@ -287,7 +287,11 @@ export async function main(argv: string[]): Promise<number> {
     .option('--rebuild', 'build the page again even if it looks current')
     .action(async (rundir: string | undefined, o: { port: string; rebuild?: boolean }) => {
       if (rundir && (!existsSync(rundir) || !statSync(rundir).isDirectory())) throw new UsageError(`${rundir} is not a directory: give a run directory written by placode run`);
-      if (rundir && !existsSync(`${rundir}/record.json`)) throw new UsageError(`${rundir} is not a run directory (no record.json)`);
+      if (rundir && !existsSync(`${rundir}/record.json`)) {
+        throw new UsageError(existsSync(`${rundir}/manifest.jsonl`)
+          ? `${rundir} is a sweep: view one of its runs (placode view ${rundir}/runs/ID; placode sweep status ${rundir} --list done lists them), or its contact sheet from placode sweep collect`
+          : `${rundir} is not a run directory (no record.json)`);
+      }
       const appDir = await ensureViewerBuilt((s) => process.stderr.write(s + '\n'), o.rebuild);
       const { url } = await startViewServer({ appDir, runDir: rundir, port: parseCount(o.port, '--port') });
       process.stdout.write(`Placode viewer at ${url}${rundir ? ` (run ${rundir})` : ''} — open it in a browser; Ctrl-C stops it\n`);
