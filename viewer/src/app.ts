@@ -9,7 +9,7 @@ import { ScenarioForm } from './scenarioForm.ts';
 import { drawDispersion } from './stabilityPlot.ts';
 import { drawColorBar } from './colorBar.ts';
 import { el, byId, download, fmt } from './dom.ts';
-import type { FromWorker, ToWorker, StabilityView } from './protocol.ts';
+import type { FromSimulation, ToSimulation, FromAnalysis, ToAnalysis, StabilityView } from './protocol.ts';
 import { colorizeField, COLORMAP_NAMES, type ColormapName } from '../../solver/io/colormap.ts';
 import { parseMeshFile } from '../../solver/io/parseMeshFile.ts';
 import { meshStatistics } from '../../solver/mesh/meshStatistics.ts';
@@ -58,7 +58,49 @@ const app: AppState = { ready: false, loaded: false, running: false, time: 0, st
 (window as unknown as { __placode: AppState }).__placode = app;
 
 const worker = new Worker(new URL('./simulationWorker.ts', import.meta.url), { type: 'module' });
-const send = (m: ToWorker, transfer: Transferable[] = []) => worker.postMessage(m, transfer);
+const send = (m: ToSimulation, transfer: Transferable[] = []) => worker.postMessage(m, transfer);
+
+/** Scenarios sent to the simulation worker and not yet answered, oldest first (it answers in order). */
+const pendingLoads: { text: string; files: Record<string, MeshFileContents> }[] = [];
+
+// ---- the analysis worker: replaced (so cancelled) when a new scenario is set up while it works
+let analysis: Worker | undefined;
+let analysing = false;
+function analyse(text: string, files: Record<string, MeshFileContents>) {
+  if (analysis && analysing) {
+    analysis.terminate();
+    analysis = undefined;
+  }
+  if (!analysis) {
+    analysis = new Worker(new URL('./analysisWorker.ts', import.meta.url), { type: 'module' });
+    analysis.onmessage = (event: MessageEvent<FromAnalysis>) => onAnalysis(event.data);
+    analysis.onerror = (e) => { analysing = false; say(`the analysis worker failed: ${e.message}`, 'error'); };
+  }
+  analysing = true;
+  const m: ToAnalysis = { type: 'analyse', text, files };
+  analysis.postMessage(m);
+}
+const askMode = (index: number) => analysis?.postMessage({ type: 'mode', index } satisfies ToAnalysis);
+
+function onAnalysis(m: FromAnalysis) {
+  switch (m.type) {
+    case 'stability':
+      analysing = false;
+      app.stability = m.view;
+      showStability(m.view);
+      break;
+    case 'mode':
+      mode = { index: m.index, eigenvalue: m.eigenvalue, values: m.values };
+      app.view = 'mode';
+      shown = live;
+      paint();
+      break;
+    case 'error':
+      analysing = false;
+      say(m.message, 'error');
+      break;
+  }
+}
 
 const view = new SurfaceView(byId('stage'));
 const openedFiles: Record<string, MeshFileContents> = {};
@@ -165,10 +207,12 @@ function status() {
 }
 
 // ---- the worker's messages
-worker.onmessage = (event: MessageEvent<FromWorker>) => {
+worker.onmessage = (event: MessageEvent<FromSimulation>) => {
   const m = event.data;
   switch (m.type) {
     case 'loaded': {
+      const accepted = pendingLoads.shift();
+      if (accepted) analyse(accepted.text, accepted.files);
       clearProblems();
       app.loaded = true;
       app.running = false;
@@ -210,6 +254,7 @@ worker.onmessage = (event: MessageEvent<FromWorker>) => {
       break;
     }
     case 'problems': {
+      pendingLoads.shift();
       const box = byId('problems');
       box.replaceChildren(el('p', { class: 'error', text: 'The scenario was not set up; the current one is unchanged:' }), ...m.problems.map((p) => el('p', { class: 'error', text: `${p.line !== undefined ? `line ${p.line}: ` : ''}${p.path ? `${p.path}: ` : ''}${p.message}` })));
       app.problems = m.problems.map((p) => `${p.path}: ${p.message}`);
@@ -238,16 +283,6 @@ worker.onmessage = (event: MessageEvent<FromWorker>) => {
       app.running = false;
       say(m.message, m.reason === 'end' ? 'info' : 'error');
       status();
-      break;
-    case 'stability':
-      app.stability = m.view;
-      showStability(m.view);
-      break;
-    case 'mode':
-      mode = { index: m.index, eigenvalue: m.eigenvalue, values: m.values };
-      app.view = 'mode';
-      shown = live;
-      paint();
       break;
     case 'error':
       say(m.message, 'error');
@@ -310,6 +345,7 @@ form.root.querySelector('#use-text')!.addEventListener('click', () => { form.use
 function setUp() {
   const text = form.scenarioText();
   byId('problems').replaceChildren(el('p', { class: 'info', text: 'setting up: building the mesh and checking the scenario…' }));
+  pendingLoads.push({ text, files: { ...openedFiles } });
   send({ type: 'load', text, files: openedFiles });
 }
 
@@ -382,7 +418,7 @@ view.onStroke = (stroke) => {
 
 // ---- stability
 function showStability(v: StabilityView) {
-  drawDispersion(byId('dispersion'), v, (i) => send({ type: 'mode', index: i }));
+  drawDispersion(byId('dispersion'), v, askMode);
   const lines: string[] = [];
   if (v.steadyState) lines.push(`steady state ${Object.entries(v.steadyState).map(([k, x]) => `${k} = ${fmt(x)}`).join(', ')}`);
   lines.push(v.band ? `unstable band k² ∈ [${fmt(v.band[0])}, ${fmt(v.band[1])}], fastest k² = ${fmt(v.fastest!.k2)} (rate ${fmt(v.fastest!.rate)})` : 'no Turing band: the steady state is stable to every spatial mode (or unstable without diffusion)');
@@ -390,7 +426,7 @@ function showStability(v: StabilityView) {
   byId('stability-summary').replaceChildren(...[...lines, ...v.notes].map((t) => el('p', { text: t })));
   byId('mode-list').replaceChildren(...v.unstable.slice(0, 40).map((m) => {
     const b = el('button', { type: 'button', class: 'mode', 'data-mode': m.index, text: `${m.index}: λ ${fmt(m.eigenvalue)}, rate ${fmt(m.rate)}` });
-    b.addEventListener('click', () => send({ type: 'mode', index: m.index }));
+    b.addEventListener('click', () => askMode(m.index));
     return b;
   }));
 }

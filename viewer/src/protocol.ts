@@ -6,15 +6,24 @@ import type { ScenarioProblem } from '../../solver/io/ScenarioError.ts';
 import type { MeshFileContents } from '../../solver/io/scenarioMesh.ts';
 import type { MeshStatistics } from '../../solver/mesh/meshStatistics.ts';
 
-export type ToWorker =
+export type ToSimulation =
   | { type: 'load'; text: string; files: Record<string, MeshFileContents> }
   | { type: 'run' }
   | { type: 'pause' }
   | { type: 'step'; steps: number }
   | { type: 'reset' }
   | { type: 'ack' }
-  | { type: 'brush'; vertices: Uint32Array; weights: Float32Array; mode: 'seed' | 'erase'; values: (number | null)[] }
+  | { type: 'brush'; vertices: Uint32Array; weights: Float32Array; mode: 'seed' | 'erase'; values: (number | null)[] };
+
+/** To the analysis worker: analyse a scenario (the text the simulation accepted), or send one of its eigenmodes. */
+export type ToAnalysis =
+  | { type: 'analyse'; text: string; files: Record<string, MeshFileContents> }
   | { type: 'mode'; index: number };
+
+export type FromAnalysis =
+  | { type: 'stability'; view: StabilityView }
+  | { type: 'mode'; index: number; eigenvalue: number; values: Float64Array }
+  | { type: 'error'; message: string };
 
 /** What the page shows of a surface: `placode mesh`'s statistics and the mean edge length. */
 export type SurfaceStats = Pick<MeshStatistics, 'vertices' | 'triangles' | 'area' | 'genus' | 'boundaryLoops' | 'components'> & { meanEdge: number };
@@ -33,7 +42,7 @@ export interface StabilityView {
   predicted: { index: number; eigenvalue: number; rate: number; multiplicity: number } | null;
 }
 
-export type FromWorker =
+export type FromSimulation =
   | {
       type: 'loaded';
       positions: Float64Array;
@@ -73,6 +82,4 @@ export type FromWorker =
       keep: boolean;
     }
   | { type: 'stopped'; reason: 'end' | 'blow-up' | 'degenerate'; message: string }
-  | { type: 'stability'; view: StabilityView }
-  | { type: 'mode'; index: number; eigenvalue: number; values: Float64Array }
   | { type: 'error'; message: string };

@@ -1,22 +1,20 @@
 /// <reference lib="webworker" />
 /**
  * The simulation worker: resolves a scenario exactly as the command line does
- * (parseScenario → resolveScenario, meshes through scenarioMesh), steps it in
+ * (resolveInViewer), steps it in
  * chunks of about 25 ms, and posts a frame (state, and the surface when it
  * grows) after each chunk the page has drawn. Buffers are transferred.
  */
-import { parseScenario } from '../../solver/io/readScenario.ts';
-import { resolveScenario, type ResolvedScenario } from '../../solver/io/resolveScenario.ts';
+import type { ResolvedScenario } from '../../solver/io/resolveScenario.ts';
 import { ScenarioError } from '../../solver/io/ScenarioError.ts';
-import { scenarioMesh, type MeshFileContents } from '../../solver/io/scenarioMesh.ts';
+import type { MeshFileContents } from '../../solver/io/scenarioMesh.ts';
+import { resolveInViewer } from './resolveInViewer.ts';
 import { SurfaceSimulation } from '../../solver/growth/SurfaceSimulation.ts';
 import { GrowthDegenerationError } from '../../solver/growth/GrowthDriver.ts';
-import { stabilityReport, constantValues, steadyStatesOf, analysedStateIndex } from '../../solver/analysis/stabilityReport.ts';
-import { growthRate } from '../../solver/analysis/dispersion.ts';
+import { constantValues, steadyStatesOf, analysedStateIndex } from '../../solver/analysis/stabilityReport.ts';
 import { meshStatistics } from '../../solver/mesh/meshStatistics.ts';
 import { meshArea } from '../../solver/mesh/triangleAreas.ts';
-import type { Eigenpairs } from '../../solver/fem/laplaceBeltramiEigenpairs.ts';
-import type { FromWorker, ToWorker, StabilityView } from './protocol.ts';
+import type { FromSimulation, ToSimulation } from './protocol.ts';
 
 declare const self: DedicatedWorkerGlobalScope;
 
@@ -26,14 +24,13 @@ let step = 0;
 let running = false;
 let waitingForAck = false;
 let pendingFrame = false;
-let eigenpairs: Eigenpairs | null = null;
 let area0 = 1;
 let lastTriangles: Uint32Array | undefined;
 let lastPositions: Float64Array | undefined;
 let rate = 0;
 let stopped = false;
 
-const post = (m: FromWorker, transfer: Transferable[] = []) => self.postMessage(m, transfer);
+const post = (m: FromSimulation, transfer: Transferable[] = []) => self.postMessage(m, transfer);
 
 function send(keep: boolean) {
   if (!sim || !resolved) return;
@@ -117,45 +114,11 @@ function loop() {
 const nextChunk = new MessageChannel();
 nextChunk.port1.onmessage = () => loop();
 
-function stability(r: ResolvedScenario): StabilityView | null {
-  try {
-    const rep = stabilityReport(r, { maxModes: r.mesh.positions.length / 3 > 60_000 ? 30 : 150 });
-    eigenpairs = rep.eigenpairs;
-    const state = rep.steadyStates[rep.state];
-    const J = rep.jacobian ? rep.jacobian.flat() : null;
-    const D = r.species.map((s) => rep.diffusion[s]);
-    const eigenvalues = eigenpairs ? Array.from(eigenpairs.values) : [];
-    return {
-      species: r.species,
-      notes: rep.notes,
-      steadyState: state ? state.values : null,
-      band: rep.turing?.band ?? null,
-      fastest: rep.turing?.fastest ?? null,
-      dispersion: rep.dispersion,
-      eigenvalues,
-      rates: J ? eigenvalues.map((l) => growthRate(J, D, l)) : [],
-      unstable: rep.modes.map((m) => ({ index: m.index, eigenvalue: m.eigenvalue, rate: m.rate })),
-      predicted: rep.predicted,
-    };
-  } catch (e) {
-    return { species: r.species, notes: [`stability analysis failed: ${(e as Error).message}`], steadyState: null, band: null, fastest: null, dispersion: { k2: [], rate: [] }, eigenvalues: [], rates: [], unstable: [], predicted: null };
-  }
-}
-
 function load(text: string, files: Record<string, MeshFileContents>) {
   running = false;
   let next: ResolvedScenario;
   try {
-    next = resolveScenario(parseScenario(text, 'scenario.yaml'), 'scenario.yaml', {
-      loadMesh: (spec) => scenarioMesh(spec, (file) => {
-        const f = files[file];
-        if (!f) throw new Error(`the mesh file "${file}" is not open in the viewer: open it (or drop it on the page) first`);
-        return f;
-      }),
-      loadState: () => {
-        throw new Error('initial.from (a previous run) is read by the command line only; the viewer starts from values, spots and noise');
-      },
-    });
+    next = resolveInViewer(text, files);
   } catch (e) {
     if (e instanceof ScenarioError) post({ type: 'problems', message: e.message, problems: e.problems });
     else post({ type: 'problems', message: (e as Error).message, problems: [{ path: '', message: (e as Error).message }] });
@@ -174,9 +137,6 @@ function load(text: string, files: Record<string, MeshFileContents>) {
     stats: { vertices: stats.vertices, triangles: stats.triangles, area: stats.area, genus: stats.genus, boundaryLoops: stats.boundaryLoops, components: stats.components, meanEdge: stats.edgeLength.mean },
     rest, colour: next.output.colour, colormap: next.output.colormap, range: next.output.range,
   }, [state.buffer, positions.buffer, triangles.buffer]);
-  // the surface's eigenpairs take a while on big meshes: after the surface is shown
-  const view = stability(next);
-  if (view) post({ type: 'stability', view });
 }
 
 /** The homogeneous steady state the erase brush restores (the scenario's analysed one), per species. */
@@ -201,7 +161,7 @@ function setUp() {
   lastPositions = sim.stepper.surface.positions;
 }
 
-self.onmessage = (event: MessageEvent<ToWorker>) => {
+self.onmessage = (event: MessageEvent<ToSimulation>) => {
   const m = event.data;
   try {
     switch (m.type) {
@@ -250,15 +210,6 @@ self.onmessage = (event: MessageEvent<ToWorker>) => {
         }
         waitingForAck = false;
         send(false);
-        break;
-      }
-      case 'mode': {
-        if (!eigenpairs || m.index >= eigenpairs.values.length) {
-          post({ type: 'error', message: `mode ${m.index} has not been computed` });
-          break;
-        }
-        const values = eigenpairs.vectors[m.index].slice();
-        post({ type: 'mode', index: m.index, eigenvalue: eigenpairs.values[m.index], values }, [values.buffer]);
         break;
       }
     }
