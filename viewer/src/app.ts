@@ -129,6 +129,8 @@ let mode: { index: number; eigenvalue: number; values: Float64Array } | undefine
 let shownTriangles: Uint32Array | undefined;
 let shownPositions: Float64Array | undefined;
 let runRange: [number, number] | undefined;
+/** the shown surface's extent, recomputed only when it moves */
+let shownExtent: { positions?: Float64Array; value: number } = { value: 0 };
 let rest: (number | null)[] = [];
 
 const speciesSelect = byId<HTMLSelectElement>('paint-species');
@@ -148,9 +150,31 @@ function fieldRange(values: Float64Array): [number, number] {
   return [lo, hi];
 }
 
+/** The frame shown: the live one, or one of the timeline (an eigenmode is painted on the live one). */
+const shownFrame = () => (app.view === 'live' ? live : shown);
+
+/** What is painted on a frame, as on screen: the field or eigenmode, its label, colormap and colour range. */
+function painting(frame: Frame): { values: Float64Array; label: string; colormap: ColormapName; range: [number, number]; own: [number, number]; showMode: boolean } | undefined {
+  const showMode = app.view === 'mode' && mode !== undefined;
+  const label = showMode ? `mode ${mode!.index}` : speciesSelect.value;
+  const values = showMode ? mode!.values : frame.fields[label];
+  if (!values) return undefined;
+  const own = fieldRange(values);
+  if (showMode) {
+    const m = Math.max(Math.abs(own[0]), Math.abs(own[1]));
+    return { values, label, colormap: 'diverging', range: [-m, m], own, showMode };
+  }
+  let range: [number, number] =
+    rangeSelect.value === 'fixed' ? [Number(byId<HTMLInputElement>('range-min').value), Number(byId<HTMLInputElement>('range-max').value)]
+    : rangeSelect.value === 'run' && runRange ? [Math.min(runRange[0], own[0]), Math.max(runRange[1], own[1])]
+    : own;
+  if (!(range[1] > range[0])) range = [range[0] - 0.5, range[0] + 0.5];
+  return { values, label, colormap: colormapSelect.value as ColormapName, range, own, showMode };
+}
+
 /** Paint what is shown: a frame (live or recorded) or an eigenmode. */
 function paint() {
-  const frame = app.view === 'live' ? live : shown;
+  const frame = shownFrame();
   if (!frame) return;
   if (frame.mesh.triangles !== shownTriangles) {
     const reframe = shownTriangles === undefined;
@@ -161,36 +185,16 @@ function paint() {
     shownPositions = frame.mesh.positions;
     view.movePositions(frame.mesh.positions);
   }
-  let values: Float64Array;
-  let label: string;
-  let colormap = colormapSelect.value as ColormapName;
-  let range: [number, number];
-  if (app.view === 'mode' && mode) {
-    values = mode.values;
-    label = `mode ${mode.index}`;
-    const m = Math.max(...fieldRange(values).map(Math.abs));
-    range = [-m, m];
-    colormap = 'diverging';
-  } else {
-    const species = speciesSelect.value;
-    values = frame.fields[species];
-    if (!values) return;
-    label = species;
-    const own = fieldRange(values);
-    if (rangeSelect.value === 'fixed') range = [Number(byId<HTMLInputElement>('range-min').value), Number(byId<HTMLInputElement>('range-max').value)];
-    else if (rangeSelect.value === 'run') {
-      runRange = runRange ? [Math.min(runRange[0], own[0]), Math.max(runRange[1], own[1])] : own;
-      range = runRange;
-    } else range = own;
-    if (!(range[1] > range[0])) range = [range[0] - 0.5, range[0] + 0.5];
-  }
-  view.setColors(colorizeField(values, colormap, range));
-  drawColorBar(byId<HTMLCanvasElement>('colorbar'), colormap, range, label);
+  const p = painting(frame);
+  if (!p) return;
+  if (rangeSelect.value === 'run' && !p.showMode) runRange = p.range; // the range grows with every frame shown
+  view.setColors(colorizeField(p.values, p.colormap, p.range));
+  drawColorBar(byId<HTMLCanvasElement>('colorbar'), p.colormap, p.range, p.label);
   let sum = 0;
-  for (let i = 0; i < values.length; i++) sum += values[i];
-  const [lo, hi] = fieldRange(values);
-  app.shown = { species: label, min: lo, mean: sum / values.length, max: hi, vertices: frame.mesh.positions.length / 3, extent: extent(frame.mesh.positions) };
-  byId('view-caption').textContent = app.view === 'mode' && mode ? `eigenmode ${mode.index}, λ = ${fmt(mode.eigenvalue)}` : `${timelineSource === 'server' && app.view === 'frame' ? 'recorded run' : app.view === 'frame' ? 'timeline' : 'live'} · t = ${fmt(frame.time)}`;
+  for (let i = 0; i < p.values.length; i++) sum += p.values[i];
+  if (shownExtent.positions !== frame.mesh.positions) shownExtent = { positions: frame.mesh.positions, value: extent(frame.mesh.positions) };
+  app.shown = { species: p.label, min: p.own[0], mean: sum / p.values.length, max: p.own[1], vertices: frame.mesh.positions.length / 3, extent: shownExtent.value };
+  byId('view-caption').textContent = p.showMode ? `eigenmode ${mode!.index}, λ = ${fmt(mode!.eigenvalue)}` : `${timelineSource === 'server' && app.view === 'frame' ? 'recorded run' : app.view === 'frame' ? 'timeline' : 'live'} · t = ${fmt(frame.time)}`;
 }
 
 for (const id of ['paint-species', 'paint-colormap', 'paint-range', 'range-min', 'range-max']) byId(id).addEventListener('input', () => { runRange = undefined; paint(); });
@@ -509,25 +513,23 @@ byId('export-png').addEventListener('click', () => {
   const w = Math.round(Number(byId<HTMLInputElement>('png-width').value)), h = Math.round(Number(byId<HTMLInputElement>('png-height').value));
   if (!(w >= 64 && h >= 64 && w <= 8192 && h <= 8192)) return say('PNG size: width and height from 64 to 8192 pixels', 'error');
   const picture = view.renderAt(w, h);
-  const scale = Math.max(1, h / 700);
-  const bar = document.createElement('canvas');
-  const colormap = (app.view === 'mode' ? 'diverging' : colormapSelect.value) as ColormapName;
-  const f = app.view === 'live' ? live : shown;
-  const values = app.view === 'mode' && mode ? mode.values : f?.fields[speciesSelect.value];
-  if (values) {
-    const own = fieldRange(values);
-    const range: [number, number] = app.view === 'mode' ? [-Math.max(...own.map(Math.abs)), Math.max(...own.map(Math.abs))] : rangeSelect.value === 'fixed' ? [Number(byId<HTMLInputElement>('range-min').value), Number(byId<HTMLInputElement>('range-max').value)] : rangeSelect.value === 'run' && runRange ? runRange : own;
-    drawColorBar(bar, colormap, range, app.view === 'mode' ? `mode ${mode?.index}` : speciesSelect.value, scale);
+  const frame = shownFrame();
+  const p = frame && painting(frame);
+  if (p) {
+    const scale = Math.max(1, h / 700);
+    const bar = document.createElement('canvas');
+    drawColorBar(bar, p.colormap, p.range, p.label, scale);
     picture.getContext('2d')!.drawImage(bar, w - bar.width - 10 * scale, (h - bar.height) / 2);
   }
   picture.toBlob((blob) => { if (blob) download('placode-view.png', blob, 'image/png'); }, 'image/png');
 });
+/** The coloured mesh as shown (colours as on screen; every species, and a painted eigenmode, as properties). */
 async function exportMesh(format: 'ply' | 'glb') {
-  const f = app.view === 'live' ? live : shown;
-  if (!f) return say('nothing to export yet', 'error');
-  const colors = app.view === 'mode' && mode ? colorizeField(mode.values, 'diverging') : colorizeField(f.fields[speciesSelect.value], colormapSelect.value as ColormapName);
-  const fields = app.view === 'mode' && mode ? { ...f.fields, [`mode${mode.index}`]: mode.values } : f.fields;
-  const bytes = await encodeSnapshot(format, f.mesh, fields, colors, `placode viewer, t = ${f.time}`);
+  const frame = shownFrame();
+  const p = frame && painting(frame);
+  if (!frame || !p) return say('nothing to export yet', 'error');
+  const fields = p.showMode ? { ...frame.fields, [`mode${mode!.index}`]: p.values } : frame.fields;
+  const bytes = await encodeSnapshot(format, frame.mesh, fields, colorizeField(p.values, p.colormap, p.range), `placode viewer, t = ${frame.time}`);
   download(`placode-view.${format}`, bytes as BlobPart, format === 'glb' ? 'model/gltf-binary' : 'application/octet-stream');
 }
 byId('export-ply').addEventListener('click', () => void exportMesh('ply'));
