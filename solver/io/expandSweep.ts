@@ -122,10 +122,21 @@ export function varyingPaths(points: readonly SweepPoint[]): string[] {
   return Object.keys(points[0]).filter((p) => new Set(points.map((q) => JSON.stringify(q[p]))).size > 1);
 }
 
-/** A short caption of a point, e.g. `F=0.03 k=0.062` (last path segment of each path shown). */
+/** A value for a caption: numbers to 4 digits, a mapping by its shape or model name when it has one. */
+function captionValue(v: unknown): string {
+  if (typeof v === 'number') return String(Number(v.toPrecision(4)));
+  if (typeof v === 'string') return v;
+  if (v && typeof v === 'object' && !Array.isArray(v)) {
+    const named = (v as Record<string, unknown>).shape ?? (v as Record<string, unknown>).model ?? (v as Record<string, unknown>).law;
+    if (typeof named === 'string') return named;
+  }
+  return JSON.stringify(v);
+}
+
+/** A short caption of a point, e.g. `F=0.03 k=0.062` or `mesh=torus` (last path segment of each path shown). */
 export function pointLabel(point: SweepPoint, shown: readonly string[] = Object.keys(point)): string {
   return Object.entries(point)
     .filter(([p]) => shown.includes(p))
-    .map(([p, v]) => `${p.split('.').pop()}=${typeof v === 'number' ? String(Number(v.toPrecision(4))) : typeof v === 'string' ? v : JSON.stringify(v)}`)
+    .map(([p, v]) => `${p.split('.').pop()}=${captionValue(v)}`)
     .join(' ');
 }

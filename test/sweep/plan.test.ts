@@ -86,6 +86,23 @@ describe('placode sweep plan', () => {
     for (const e of a.entries) expect(ids.has(e.id)).toBe(true);
   });
 
+  it('whole mappings are values too: a sweep over shapes, each with its own parameters', () => {
+    write('base.yaml', BASE);
+    const sweep = write('shapes.yaml', `scenario: base.yaml
+vary:
+  mesh:
+    - {shape: sphere, params: {radius: 0.25}, vertices: 300}
+    - {shape: torus, params: {R: 0.3, r: 0.1}, vertices: 300}
+    - {shape: capsule, params: {r: 0.15, L: 0.4}, vertices: 300}
+  kinetics.parameters.F: [0.03, 0.04]
+`);
+    const p = planSweep(sweep, { out: temp.path('shapes'), log: () => {} });
+    expect(p.entries.map((e) => e.label)).toEqual(['mesh=sphere F=0.03', 'mesh=sphere F=0.04', 'mesh=torus F=0.03', 'mesh=torus F=0.04', 'mesh=capsule F=0.03', 'mesh=capsule F=0.04']);
+    const torus = JSON.parse(readFileSync(temp.path('shapes', p.entries[2].scenario), 'utf8'));
+    expect(torus.mesh).toEqual({ shape: 'torus', params: { R: 0.3, r: 0.1 }, vertices: 300 });
+    expect(torus.kinetics.parameters).toEqual({ F: 0.03, k: 0.062 });
+  });
+
   it('a scenario with a sweep section is a sweep of itself; mesh files are re-pointed from the scenario directories', async () => {
     const r1 = await run('mesh', 'sphere', '--vertices', '300', '-o', temp.path('ball.ply'));
     expect(r1.code).toBe(0);
