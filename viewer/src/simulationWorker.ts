@@ -1,9 +1,9 @@
 /// <reference lib="webworker" />
 /**
  * The simulation worker: resolves a scenario exactly as the command line does
- * (resolveInViewer), steps it in
- * chunks of about 25 ms, and posts a frame (state, and the surface when it
- * grows) after each chunk the page has drawn. Buffers are transferred.
+ * (resolveInViewer), steps it in chunks of about 25 ms, and posts a frame
+ * (state, and the surface when it grows) after each chunk the page has drawn.
+ * Buffers are transferred. The stability analysis is analysisWorker's.
  */
 import type { ResolvedScenario } from '../../solver/io/resolveScenario.ts';
 import { ScenarioError } from '../../solver/io/ScenarioError.ts';
