@@ -1,5 +1,5 @@
 import { writeFileAtomic } from '../io/meshFiles.ts';
-import { runFrames, loadSnapshot, speciesRange, colormapOption, fixedRangeOption } from './runFrames.ts';
+import { runFrames, snapshotField, speciesRange, colormapOption, fixedRangeOption } from './runFrames.ts';
 import { surfaceFigurePng, surfaceFigureSvg, type FigurePanel } from '../io/surfaceFigure.ts';
 import { VIEW_PRESETS } from '../io/surfaceView.ts';
 import { UsageError } from './UsageError.ts';
@@ -43,11 +43,9 @@ export function runFigure(input: string, o: FigureOptions): string {
   const panels: FigurePanel[] = [];
   let species = o.species;
   for (const f of files) {
-    const snap = loadSnapshot(f.file);
-    const names = Object.keys(snap.fields);
-    species ??= names[names.length - 1];
-    if (!snap.fields[species]) throw new UsageError(`--species ${species}: the frames hold ${names.join(', ')}`);
-    panels.push({ mesh: snap.mesh, values: snap.fields[species], label: o.sheet ? f.label : undefined });
+    const field = snapshotField(f.file, species);
+    species = field.species;
+    panels.push({ mesh: field.mesh, values: field.values, label: o.sheet ? f.label : undefined });
   }
   const colormap = colormapOption(o.colormap);
   let view = VIEW_PRESETS[o.view];

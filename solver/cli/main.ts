@@ -17,7 +17,8 @@ import { runStability } from './stability.ts';
 import { exportRun, type ExportFormat } from './exportRun.ts';
 import { runFigure } from './figure.ts';
 import { VIEW_PRESETS } from '../io/surfaceView.ts';
-import { planSweep } from './sweepPlan.ts';
+import { planSweep, SWEEP_FILES } from './sweepPlan.ts';
+import { RUN_FILES } from '../io/runFiles.ts';
 import { runSweepTask, sweepStatus } from './sweepTask.ts';
 import { runSweepLocal } from './sweepPool.ts';
 import { writeSlurmArray } from './sweepSlurm.ts';
@@ -287,10 +288,10 @@ export async function main(argv: string[]): Promise<number> {
     .option('--rebuild', 'build the page again even if it looks current')
     .action(async (rundir: string | undefined, o: { port: string; rebuild?: boolean }) => {
       if (rundir && (!existsSync(rundir) || !statSync(rundir).isDirectory())) throw new UsageError(`${rundir} is not a directory: give a run directory written by placode run`);
-      if (rundir && !existsSync(`${rundir}/record.json`)) {
-        throw new UsageError(existsSync(`${rundir}/manifest.jsonl`)
+      if (rundir && !existsSync(join(rundir, RUN_FILES.record))) {
+        throw new UsageError(existsSync(join(rundir, SWEEP_FILES.manifest))
           ? `${rundir} is a sweep: view one of its runs (placode view ${rundir}/runs/ID; placode sweep status ${rundir} --list done lists them), or its contact sheet from placode sweep collect`
-          : `${rundir} is not a run directory (no record.json)`);
+          : `${rundir} is not a run directory (no ${RUN_FILES.record})`);
       }
       const appDir = await ensureViewerBuilt((s) => process.stderr.write(s + '\n'), o.rebuild);
       const { url } = await startViewServer({ appDir, runDir: rundir, port: parseCount(o.port, '--port') });

@@ -37,6 +37,15 @@ export function loadSnapshot(file: string): Snapshot {
   return { name: basename(file).replace(/\.ply$/, ''), mesh: imported.mesh, fields };
 }
 
+/** One species of a frame file (default: its last), with the name chosen; a species it lacks is a usage error. */
+export function snapshotField(file: string, species?: string): { mesh: Mesh; values: Float64Array; species: string } {
+  const snap = loadSnapshot(file);
+  const names = Object.keys(snap.fields);
+  const chosen = species ?? names[names.length - 1];
+  if (!snap.fields[chosen]) throw new UsageError(`--species ${chosen}: ${file} holds ${names.join(', ')}`);
+  return { mesh: snap.mesh, values: snap.fields[chosen], species: chosen };
+}
+
 /** Smallest and largest value of a species over frame files (a colour range shared by a whole run). */
 export function speciesRange(files: readonly string[], species: string): [number, number] | undefined {
   let lo = Infinity, hi = -Infinity;

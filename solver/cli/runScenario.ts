@@ -1,9 +1,8 @@
 import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import cliProgress from 'cli-progress';
-import { parse as parseYaml } from 'yaml';
 import { parseScenario } from '../io/readScenario.ts';
-import { isSweepFile } from '../io/Sweep.ts';
+import { isSweepFileText } from '../io/Sweep.ts';
 import { resolveScenario, type ResolvedScenario } from '../io/resolveScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { RUN_FILES, frameName, encodeFrame, stateMetrics, metricsHeader, metricsRow, encodeState, decodeState, type SavedState } from '../io/runFiles.ts';
@@ -21,6 +20,8 @@ import { prolongField } from '../mesh/Refinement.ts';
 import type { Mesh } from '../mesh/Mesh.ts';
 import { nodeScenarioEnvironment, meshChecksum } from './scenarioEnvironment.ts';
 import { UsageError } from './UsageError.ts';
+import { readTextFile } from './readTextFile.ts';
+import { ScenarioError } from '../io/ScenarioError.ts';
 import { SurfaceSimulation } from '../growth/SurfaceSimulation.ts';
 import { VERSION } from './version.ts';
 
@@ -93,28 +94,20 @@ interface RunAnalysis {
 
 const isDirWithFiles = (dir: string) => existsSync(dir) && statSync(dir).isDirectory() && readdirSync(dir).length > 0;
 
-function readScenarioText(file: string): string {
-  try {
-    return readFileSync(file, 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new UsageError(`${file}: ${code === 'ENOENT' ? 'no such scenario file' : code === 'EISDIR' ? 'is a directory, not a scenario file' : (e as Error).message}`);
-  }
-}
-
 /** Read, check and resolve a scenario file (meshes and previous runs found relative to it). */
 export function loadScenarioFile(file: string): { text: string; resolved: ResolvedScenario } {
-  const text = readScenarioText(file);
-  let raw: unknown;
+  const text = readTextFile(file, 'scenario file');
+  let source;
   try {
-    raw = parseYaml(text);
-  } catch {
-    raw = undefined; // parseScenario reports the syntax error with its line
+    source = parseScenario(text, file);
+  } catch (e) {
+    // a sweep file fails the scenario schema: say what it is instead
+    if (e instanceof ScenarioError && isSweepFileText(text)) {
+      throw new UsageError(`${file} is a sweep file (scenario: + vary:), not a scenario: expand it with placode sweep plan ${file} --out DIR`);
+    }
+    throw e;
   }
-  if (isSweepFile(raw)) {
-    throw new UsageError(`${file} is a sweep file (scenario: + vary:), not a scenario: expand it with placode sweep plan ${file} --out DIR`);
-  }
-  return { text, resolved: resolveScenario(parseScenario(text, file), file, nodeScenarioEnvironment(file)) };
+  return { text, resolved: resolveScenario(source, file, nodeScenarioEnvironment(file)) };
 }
 
 /** Check a scenario and return its resolved plan (what `run` would do), without running it. */
@@ -464,8 +457,13 @@ function formatSeconds(s: number): string {
   return `${(s / 3600).toFixed(1)} h`;
 }
 
+/** The progress display a --progress option asks for: auto is a bar on a terminal, plain lines otherwise. */
+export function progressMode(option: RunOptions['progress']): 'bar' | 'lines' | 'none' {
+  return option === 'auto' || option === undefined ? (process.stderr.isTTY ? 'bar' : 'lines') : option;
+}
+
 function makeProgress(options: RunOptions, log: (line: string) => void, start: number, end: number): Progress {
-  const mode = options.progress === 'auto' || options.progress === undefined ? (process.stderr.isTTY ? 'bar' : 'lines') : options.progress;
+  const mode = progressMode(options.progress);
   if (mode === 'none') return { update() {}, stop() {} };
   const started = performance.now();
   if (mode === 'bar') {

@@ -5,9 +5,9 @@ import { writeFileAtomic } from '../io/meshFiles.ts';
 import { surfaceFigurePng, type FigurePanel } from '../io/surfaceFigure.ts';
 import { axisValues } from '../io/expandSweep.ts';
 import { VIEW_PRESETS } from '../io/surfaceView.ts';
-import { loadSnapshot, colormapOption, fixedRangeOption } from './runFrames.ts';
+import { snapshotField, colormapOption, fixedRangeOption } from './runFrames.ts';
 import { readManifest } from './sweepPlan.ts';
-import { runStatus } from './sweepTask.ts';
+import { runStatus, readRunRecord } from './sweepTask.ts';
 import { UsageError } from './UsageError.ts';
 
 export interface CollectOptions {
@@ -32,8 +32,8 @@ function csvField(v: unknown): string {
 }
 
 interface Record_ {
-  status?: string;
-  stop?: { reason: string; time: number; step: number };
+  status: string;
+  stop?: { reason: string; time: number; step: number; message: string };
   performance?: { steppingSeconds: number };
   analysis?: {
     species: string;
@@ -58,16 +58,12 @@ export function collectSweep(dirArg: string, o: CollectOptions = {}): { csv: str
   let species = o.species;
   let missing = 0;
   for (const e of entries) {
-    const status = runStatus(dir, e);
+    const read = readRunRecord<Record_>(dir, e);
+    const status = runStatus(dir, e, { record: read });
+    const record = read ?? undefined;
     const run = join(dir, e.run);
     const row: Record<string, unknown> = { index: e.index, id: e.id, state: status.state };
     for (const p of paths) row[p] = e.values[p];
-    let record: Record_ | undefined;
-    try {
-      record = existsSync(join(run, RUN_FILES.record)) ? JSON.parse(readFileSync(join(run, RUN_FILES.record), 'utf8')) : undefined;
-    } catch {
-      record = undefined;
-    }
     if (status.state === 'failed') row.message = status.message?.split('\n')[0];
     if (record) {
       row.stop = record.stop?.reason;
@@ -107,7 +103,9 @@ export function collectSweep(dirArg: string, o: CollectOptions = {}): { csv: str
     rows.push(row);
     const finalFile = join(run, RUN_FILES.final);
     if (o.sheet !== false && status.state === 'done' && existsSync(finalFile)) {
-      panels.push(loadPanel(finalFile, () => species, e.label));
+      const field = snapshotField(finalFile, species);
+      species = field.species;
+      panels.push({ mesh: field.mesh, values: field.values, label: e.label });
     } else {
       if (status.state !== 'done') missing++;
       panels.push({ label: `${e.label} (${status.state})` });
@@ -134,12 +132,4 @@ export function collectSweep(dirArg: string, o: CollectOptions = {}): { csv: str
   const sheet = o.sheet ?? join(dir, 'sheet.png');
   writeFileAtomic(sheet, surfaceFigurePng({ panels, columns: columnsOnSheet, species: species ?? '', colormap, range, view, title: `${plan.name}: ${plan.varying.map((p) => p.split('.').pop()).join(' x ')}`, width, height }), true);
   return { csv, sheet, rows: rows.length, missing };
-}
-
-function loadPanel(file: string, species: () => string | undefined, label: string): FigurePanel {
-  const snap = loadSnapshot(file);
-  const names = Object.keys(snap.fields);
-  const s = species() ?? names[names.length - 1];
-  if (!snap.fields[s]) throw new UsageError(`--species ${s}: ${file} holds ${names.join(', ')}`);
-  return { mesh: snap.mesh, values: snap.fields[s], label };
 }

@@ -1,16 +1,16 @@
 import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { dirname, isAbsolute, join, relative, resolve } from 'node:path';
-import { parse as parseYaml } from 'yaml';
 import { parseCheckedYaml, parseScenario, compileSchema, pathText } from '../io/readScenario.ts';
 import { SCENARIO_SCHEMA, type Scenario } from '../io/Scenario.ts';
-import { SWEEP_FILE_SCHEMA, isSweepFile, type SweepSpec } from '../io/Sweep.ts';
+import { SWEEP_FILE_SCHEMA, isSweepFileText, type SweepSpec } from '../io/Sweep.ts';
 import { ScenarioError, type ScenarioProblem } from '../io/ScenarioError.ts';
 import { expandSweep, applySweepPoint, sweepAxisProblems, pointLabel, varyingPaths, type SweepPoint } from '../io/expandSweep.ts';
 import { resolveScenario } from '../io/resolveScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { nodeScenarioEnvironment } from './scenarioEnvironment.ts';
 import { UsageError } from './UsageError.ts';
+import { readTextFile } from './readTextFile.ts';
 import { VERSION } from './version.ts';
 
 /** Files of a planned sweep directory. */
@@ -54,34 +54,19 @@ export interface SweepPlan {
 const scenarioCheck = compileSchema(SCENARIO_SCHEMA);
 const sweepFileCheck = compileSchema(SWEEP_FILE_SCHEMA);
 
-function readText(file: string, what: string): string {
-  try {
-    return readFileSync(file, 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new UsageError(`${file}: ${code === 'ENOENT' ? `no such ${what}` : code === 'EISDIR' ? `is a directory, not a ${what}` : (e as Error).message}`);
-  }
-}
-
 /**
  * Read a sweep: a sweep file (`scenario:` + `vary:`) or a scenario with a
  * `sweep:` section. Returns the sweep, the base scenario (without its sweep
  * section) and the base scenario's file, against which its paths resolve.
  */
 export function readSweep(file: string): { spec: SweepSpec; base: Scenario; baseFile: string; text: string } {
-  const text = readText(file, 'sweep file');
-  let raw: unknown;
-  try {
-    raw = parseYaml(text);
-  } catch {
-    raw = undefined; // the checked parse below reports the syntax error with its line
-  }
-  if (isSweepFile(raw)) {
+  const text = readTextFile(file, 'sweep file');
+  if (isSweepFileText(text)) {
     const { data, locate } = parseCheckedYaml(text, file, sweepFileCheck, 'a sweep file must be a mapping with scenario and vary');
     const spec = data as unknown as SweepSpec;
     checkAxes(spec, file, (p) => locate(p));
     const baseFile = resolve(dirname(file), spec.scenario!);
-    const base = parseScenario(readText(baseFile, 'scenario file (the sweep\'s "scenario")'), baseFile).scenario;
+    const base = parseScenario(readTextFile(baseFile, 'scenario file (the sweep\'s "scenario")'), baseFile).scenario;
     delete base.sweep;
     return { spec, base, baseFile, text };
   }

@@ -3,6 +3,7 @@ import { availableParallelism } from 'node:os';
 import cliProgress from 'cli-progress';
 import { readManifest } from './sweepPlan.ts';
 import { runStatus, markFailed, type TaskOutcome } from './sweepTask.ts';
+import { progressMode } from './runScenario.ts';
 
 export interface PoolOptions {
   /** worker threads (default: every core) */
@@ -52,7 +53,7 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
     return outcome;
   }
   log(`running ${todo.length} of ${entries.length} runs on ${workers} worker thread${workers > 1 ? 's' : ''}${skipped ? ` (${skipped} already finished)` : ''}`);
-  const mode = options.progress === 'auto' || options.progress === undefined ? (process.stderr.isTTY ? 'bar' : 'lines') : options.progress;
+  const mode = progressMode(options.progress);
   const bar = mode === 'bar' ? new cliProgress.SingleBar({ format: 'sweep |{bar}| {value}/{total} runs  {failed} failed  ETA {eta_formatted}', hideCursor: true, stream: process.stderr }, cliProgress.Presets.shades_classic) : undefined;
   bar?.start(todo.length, 0, { failed: 0 });
   let finished = 0;

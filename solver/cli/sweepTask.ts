@@ -22,9 +22,20 @@ export interface RunStatus {
   message?: string;
 }
 
-export function runStatus(dir: string, entry: ManifestEntry): RunStatus {
-  const run = join(dir, entry.run);
-  const failure = join(run, SWEEP_FILES.failure);
+/** A run's record.json as parsed: undefined when there is none, null when it cannot be read. */
+export function readRunRecord<T extends { status: string; stop?: { message: string } }>(dir: string, entry: ManifestEntry): T | null | undefined {
+  const recordFile = join(dir, entry.run, RUN_FILES.record);
+  if (!existsSync(recordFile)) return undefined;
+  try {
+    return JSON.parse(readFileSync(recordFile, 'utf8'));
+  } catch {
+    return null;
+  }
+}
+
+/** The state of a run; `read` is its record when the caller has read it already (readRunRecord). */
+export function runStatus(dir: string, entry: ManifestEntry, read?: { record: { status: string; stop?: { message: string } } | null | undefined }): RunStatus {
+  const failure = join(dir, entry.run, SWEEP_FILES.failure);
   if (existsSync(failure)) {
     try {
       return { state: 'failed', message: (JSON.parse(readFileSync(failure, 'utf8')) as { message: string }).message };
@@ -32,14 +43,9 @@ export function runStatus(dir: string, entry: ManifestEntry): RunStatus {
       return { state: 'failed', message: `${failure} cannot be read` };
     }
   }
-  const recordFile = join(run, RUN_FILES.record);
-  if (!existsSync(recordFile)) return { state: 'pending' };
-  let record: { status: string; stop?: { message: string } };
-  try {
-    record = JSON.parse(readFileSync(recordFile, 'utf8'));
-  } catch {
-    return { state: 'running', message: 'record.json cannot be read: the run will start again' };
-  }
+  const record = read ? read.record : readRunRecord(dir, entry);
+  if (record === undefined) return { state: 'pending' };
+  if (record === null) return { state: 'running', message: 'record.json cannot be read: the run will start again' };
   switch (record.status) {
     case 'end':
     case 'steady-state':

@@ -1,3 +1,5 @@
+import { parse } from 'yaml';
+
 /**
  * A parameter sweep, as written by the user: a base scenario and the values
  * to vary. Either a sweep file (`scenario:` names the base) or a `sweep:`
@@ -74,7 +76,16 @@ export const SWEEP_FILE_SCHEMA = {
   properties: { scenario: { type: 'string', minLength: 1 }, ...sweepProperties },
 };
 
-/** Whether parsed YAML is a sweep file (a base `scenario` to vary) rather than a scenario. */
-export function isSweepFile(data: unknown): boolean {
+/**
+ * Whether a file's text is a sweep file (a base `scenario` to vary) rather
+ * than a scenario; text that is not YAML is neither (its parser says why).
+ */
+export function isSweepFileText(text: string): boolean {
+  let data: unknown;
+  try {
+    data = parse(text);
+  } catch {
+    return false;
+  }
   return data !== null && typeof data === 'object' && 'scenario' in data && !('kinetics' in data);
 }
