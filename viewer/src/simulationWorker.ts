@@ -27,6 +27,8 @@ let pendingFrame = false;
 let area0 = 1;
 let lastTriangles: Uint32Array | undefined;
 let lastPositions: Float64Array | undefined;
+/** √(area / start area) of the surface last sent: recomputed only when the surface moves */
+let growthFactor = 1;
 let rate = 0;
 let stopped = false;
 
@@ -48,6 +50,7 @@ function send(keep: boolean) {
   }
   if (surface.positions !== lastPositions || triangles) {
     lastPositions = surface.positions;
+    growthFactor = Math.sqrt(meshArea(surface) / area0);
     positions = surface.positions.slice();
   }
   const transfer: Transferable[] = [state.buffer];
@@ -55,7 +58,7 @@ function send(keep: boolean) {
   if (triangles) transfer.push(triangles.buffer);
   waitingForAck = true;
   pendingFrame = false;
-  post({ type: 'frame', time: step * resolved.dt, step, state, positions, triangles, stepsPerSecond: rate, growthFactor: Math.sqrt(meshArea(surface) / area0), running, keep }, transfer);
+  post({ type: 'frame', time: step * resolved.dt, step, state, positions, triangles, stepsPerSecond: rate, growthFactor, running, keep }, transfer);
 }
 
 function stop(reason: 'end' | 'blow-up' | 'degenerate', message: string) {
@@ -159,6 +162,7 @@ function setUp() {
   area0 = meshArea(resolved!.mesh);
   lastTriangles = sim.stepper.surface.triangles;
   lastPositions = sim.stepper.surface.positions;
+  growthFactor = 1;
 }
 
 self.onmessage = (event: MessageEvent<ToSimulation>) => {
