@@ -1,8 +1,8 @@
 import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { dirname, isAbsolute, join, relative, resolve } from 'node:path';
-import { parseCheckedYaml, parseScenario, compileSchema, pathText } from '../io/readScenario.ts';
-import { SCENARIO_SCHEMA, type Scenario } from '../io/Scenario.ts';
+import { parseCheckedYaml, parseScenario, compileSchema, pathText, validateScenario } from '../io/readScenario.ts';
+import type { Scenario } from '../io/Scenario.ts';
 import { SWEEP_FILE_SCHEMA, isSweepFileText, type SweepSpec } from '../io/Sweep.ts';
 import { ScenarioError, type ScenarioProblem } from '../io/ScenarioError.ts';
 import { expandSweep, applySweepPoint, sweepAxisProblems, pointLabel, varyingPaths, type SweepPoint } from '../io/expandSweep.ts';
@@ -51,7 +51,6 @@ export interface SweepPlan {
   duplicatesDropped: number;
 }
 
-const scenarioCheck = compileSchema(SCENARIO_SCHEMA);
 const sweepFileCheck = compileSchema(SWEEP_FILE_SCHEMA);
 
 /**
@@ -129,8 +128,8 @@ export function planSweep(file: string, options: PlanOptions): { dir: string; en
     }
     repointFiles(sc, dirname(baseFile), scenariosDir);
     const label = pointLabel(points[i], varying);
-    if (!scenarioCheck(sc)) {
-      for (const e of scenarioCheck.errors ?? []) {
+    if (!validateScenario(sc)) {
+      for (const e of validateScenario.errors ?? []) {
         if (problems.length < 12) problems.push({ path: `point ${i} (${label})`, message: `the scenario's ${pathText(e.instancePath.split('/').slice(1)) || 'top level'} ${e.message ?? 'is not valid'}` });
       }
       continue;

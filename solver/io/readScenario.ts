@@ -4,7 +4,8 @@ import { SCENARIO_SCHEMA, type Scenario } from './Scenario.ts';
 import { ScenarioError, closestName, type ScenarioProblem } from './ScenarioError.ts';
 
 const ajv = new Ajv({ allErrors: true, verbose: true, strict: true });
-const validate = ajv.compile(SCENARIO_SCHEMA);
+/** The scenario schema, compiled once: checks a scenario object (its errors in `.errors`). */
+export const validateScenario = ajv.compile(SCENARIO_SCHEMA);
 
 /** A parsed scenario with a way to locate any path in the source text. */
 export interface ScenarioSource {
@@ -138,7 +139,7 @@ export function compileSchema(schema: object): ValidateFunction {
  * schema. Throws a ScenarioError listing every problem with its path and line.
  */
 export function parseScenario(text: string, file: string): ScenarioSource {
-  const { data, locate } = parseCheckedYaml(text, file, validate, 'a scenario must be a mapping with mesh, kinetics and time');
+  const { data, locate } = parseCheckedYaml(text, file, validateScenario, 'a scenario must be a mapping with mesh, kinetics and time');
   return { scenario: data as unknown as Scenario, locate };
 }
 
