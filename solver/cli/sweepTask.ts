@@ -67,6 +67,8 @@ export interface TaskOptions {
   log?: (line: string) => void;
   /** asked between chunks of steps: true stops the run, saving its state */
   shouldStop?: () => boolean;
+  /** the sweep's manifest when the caller has read it already (a pool worker reads it once) */
+  manifest?: { dir: string; entries: ManifestEntry[] };
 }
 
 export interface TaskOutcome {
@@ -87,7 +89,7 @@ export interface TaskOutcome {
  * one bad point never stops the others. Messages also go to logs/ID.log.
  */
 export async function runSweepTask(dirArg: string, index: number, options: TaskOptions = {}): Promise<TaskOutcome> {
-  const { dir, entries } = readManifest(dirArg);
+  const { dir, entries } = options.manifest ?? readManifest(dirArg);
   if (!(index >= 0 && index < entries.length)) throw new UsageError(`--index ${index}: the sweep in ${dirArg} has runs 0–${entries.length - 1}`);
   const entry = entries[index];
   const t0 = performance.now();
