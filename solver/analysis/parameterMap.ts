@@ -1,4 +1,4 @@
-import type { ResolvedScenario } from '../io/resolveScenario.ts';
+import type { ResolvedScenario } from '../scenario/resolveScenario.ts';
 import { constantValues, steadyStatesOf } from './stabilityReport.ts';
 import { turingAnalysis } from './dispersion.ts';
 import { evaluateSurfaceFormula } from '../kinetics/surfaceField.ts';

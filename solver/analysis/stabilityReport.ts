@@ -1,4 +1,4 @@
-import type { ResolvedScenario } from '../io/resolveScenario.ts';
+import type { ResolvedScenario } from '../scenario/resolveScenario.ts';
 import type { Eigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
 import { laplaceBeltramiEigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';

@@ -5,10 +5,10 @@ import { meshStatistics } from '../mesh/meshStatistics.ts';
 import { saveMeshFile } from '../io/meshFiles.ts';
 import { saveModeFile } from './saveModeFile.ts';
 import { laplaceBeltramiEigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
-import { runScenarioFile } from './runScenario.ts';
+import { runScenarioFile } from '../run/runScenarioFile.ts';
 import { runFigure } from './figure.ts';
 import { loadMeshFile } from '../io/meshFiles.ts';
-import { speciesFromProperties, RUN_FILES } from '../io/runFiles.ts';
+import { speciesFromProperties, RUN_FILES } from '../run/runFiles.ts';
 import { thresholdComponents } from '../analysis/thresholdComponents.ts';
 
 /** The example scenario the demo runs. */

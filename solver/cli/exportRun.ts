@@ -4,7 +4,7 @@ import { writeFileAtomic } from '../io/meshFiles.ts';
 import { colorizeField } from '../io/colormap.ts';
 import { writeAnimatedGlb } from '../io/writeGlb.ts';
 import { encodeSnapshot, type SnapshotFormat } from '../io/encodeSnapshot.ts';
-import { runFrames, loadSnapshot, speciesRange, colormapOption, fixedRangeOption } from './runFrames.ts';
+import { runFrames, loadSnapshot, speciesRange, colormapOption, fixedRangeOption } from '../run/runFrames.ts';
 import { UsageError } from './UsageError.ts';
 
 export type ExportFormat = SnapshotFormat;

@@ -1,4 +1,4 @@
-import { loadScenarioFile } from './runScenario.ts';
+import { loadScenarioFile } from '../run/runScenarioFile.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { stabilityReport } from '../analysis/stabilityReport.ts';
 import { parameterMap, parameterMapCsv, type MapAxis } from '../analysis/parameterMap.ts';

@@ -1,7 +1,7 @@
 import { createServer, type Server, type IncomingMessage, type ServerResponse } from 'node:http';
 import { createReadStream, existsSync, readFileSync, realpathSync, statSync } from 'node:fs';
 import { extname, isAbsolute, join, relative, resolve, sep, basename } from 'node:path';
-import { RUN_FILES } from '../io/runFiles.ts';
+import { RUN_FILES } from '../run/runFiles.ts';
 
 const TYPES: Record<string, string> = {
   '.html': 'text/html; charset=utf-8',

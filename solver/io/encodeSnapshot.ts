@@ -2,7 +2,7 @@ import type { Mesh } from '../mesh/Mesh.ts';
 import { writePly } from './writePly.ts';
 import { writeObj } from './writeObj.ts';
 import { writeGlb } from './writeGlb.ts';
-import { speciesProperty } from './runFiles.ts';
+import { speciesProperty } from '../run/runFiles.ts';
 
 export type SnapshotFormat = 'ply' | 'glb' | 'obj' | 'csv';
 export const SNAPSHOT_FORMATS: readonly SnapshotFormat[] = ['ply', 'glb', 'obj', 'csv'];

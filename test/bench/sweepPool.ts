@@ -2,8 +2,8 @@ import { mkdtempSync, rmSync, writeFileSync, readFileSync } from 'node:fs';
 import { Worker } from 'node:worker_threads';
 import { tmpdir, availableParallelism } from 'node:os';
 import { join } from 'node:path';
-import { planSweep } from '../../solver/cli/sweepPlan.ts';
-import { runSweepLocal } from '../../solver/cli/sweepPool.ts';
+import { planSweep } from '../../solver/sweep/sweepPlan.ts';
+import { runSweepLocal } from '../../solver/sweep/sweepPool.ts';
 
 /** Seconds for `threads` worker threads each running the same CPU-bound loop: the machine's own ceiling on parallel speed-up. */
 async function busyThreads(threads: number): Promise<number> {

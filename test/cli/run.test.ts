@@ -4,9 +4,9 @@ import { spawn } from 'node:child_process';
 import { join } from 'node:path';
 import { runCli as run } from '../fixtures/cli.ts';
 import { useTempFiles } from '../fixtures/tempFiles.ts';
-import { runScenarioFile } from '../../solver/cli/runScenario.ts';
+import { runScenarioFile } from '../../solver/run/runScenarioFile.ts';
 import { loadMeshFile } from '../../solver/io/meshFiles.ts';
-import { decodeState, speciesFromProperties } from '../../solver/io/runFiles.ts';
+import { decodeState, speciesFromProperties } from '../../solver/run/runFiles.ts';
 import { thresholdComponents } from '../../solver/analysis/thresholdComponents.ts';
 import { meshArea } from '../../solver/mesh/triangleAreas.ts';
 

@@ -3,7 +3,7 @@ import { mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from 'n
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { runCli as run } from '../fixtures/cli.ts';
-import { runScenarioFile } from '../../solver/cli/runScenario.ts';
+import { runScenarioFile } from '../../solver/run/runScenarioFile.ts';
 import { loadMeshFile } from '../../solver/io/meshFiles.ts';
 import { meshArea } from '../../solver/mesh/triangleAreas.ts';
 import { icosphere } from '../../meshes/shapes/icosphere.ts';

@@ -8,7 +8,7 @@ import { PLYLoader } from 'three/examples/jsm/loaders/PLYLoader.js';
 import { OBJLoader } from 'three/examples/jsm/loaders/OBJLoader.js';
 import { runCli as run } from '../fixtures/cli.ts';
 import { loadMeshFile } from '../../solver/io/meshFiles.ts';
-import { speciesFromProperties } from '../../solver/io/runFiles.ts';
+import { speciesFromProperties } from '../../solver/run/runFiles.ts';
 import { colorizeField, colormapTable } from '../../solver/io/colormap.ts';
 import { linearToSrgb, srgbToLinear } from '../../solver/io/writeGlb.ts';
 

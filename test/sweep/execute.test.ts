@@ -3,10 +3,10 @@ import { readFileSync, existsSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 import { PNG } from 'pngjs';
-import { planSweep } from '../../solver/cli/sweepPlan.ts';
-import { runSweepLocal } from '../../solver/cli/sweepPool.ts';
-import { sweepStatus } from '../../solver/cli/sweepTask.ts';
-import { runScenarioFile } from '../../solver/cli/runScenario.ts';
+import { planSweep } from '../../solver/sweep/sweepPlan.ts';
+import { runSweepLocal } from '../../solver/sweep/sweepPool.ts';
+import { sweepStatus } from '../../solver/sweep/sweepTask.ts';
+import { runScenarioFile } from '../../solver/run/runScenarioFile.ts';
 import { runCli as run } from '../fixtures/cli.ts';
 import { useTempFiles } from '../fixtures/tempFiles.ts';
 

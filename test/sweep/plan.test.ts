@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { expandSweep, applySweepPoint, axisValues } from '../../solver/io/expandSweep.ts';
-import { planSweep } from '../../solver/cli/sweepPlan.ts';
-import { arraySpec, arrayChunks } from '../../solver/cli/sweepSlurm.ts';
+import { expandSweep, applySweepPoint, axisValues } from '../../solver/sweep/expandSweep.ts';
+import { planSweep } from '../../solver/sweep/sweepPlan.ts';
+import { arraySpec, arrayChunks } from '../../solver/sweep/sweepSlurm.ts';
 import { runCli as run } from '../fixtures/cli.ts';
 import { useTempFiles } from '../fixtures/tempFiles.ts';
 

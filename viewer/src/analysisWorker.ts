@@ -5,7 +5,7 @@
  * simulation worker so that a run starts at once, however long the
  * eigen-solve takes; the page replaces this worker to cancel an analysis.
  */
-import type { ResolvedScenario } from '../../solver/io/resolveScenario.ts';
+import type { ResolvedScenario } from '../../solver/scenario/resolveScenario.ts';
 import { stabilityReport } from '../../solver/analysis/stabilityReport.ts';
 import { growthRate } from '../../solver/analysis/dispersion.ts';
 import type { Eigenpairs } from '../../solver/fem/laplaceBeltramiEigenpairs.ts';

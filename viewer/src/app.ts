@@ -13,10 +13,10 @@ import type { FromSimulation, ToSimulation, FromAnalysis, ToAnalysis, StabilityV
 import { colorizeField, COLORMAP_NAMES, type ColormapName } from '../../solver/io/colormap.ts';
 import { parseMeshFile } from '../../solver/io/parseMeshFile.ts';
 import { meshStatistics } from '../../solver/mesh/meshStatistics.ts';
-import { speciesFromProperties } from '../../solver/io/runFiles.ts';
+import { speciesFromProperties } from '../../solver/run/runFiles.ts';
 import { encodeSnapshot } from '../../solver/io/encodeSnapshot.ts';
 import { speciesField } from '../../solver/integrate/ReactionDiffusionSystem.ts';
-import type { MeshFileContents } from '../../solver/io/scenarioMesh.ts';
+import type { MeshFileContents } from '../../solver/scenario/scenarioMesh.ts';
 import type { Mesh } from '../../solver/mesh/Mesh.ts';
 
 const EXAMPLES = import.meta.glob('../../meshes/examples/*.yaml', { query: '?raw', import: 'default', eager: true }) as Record<string, string>;

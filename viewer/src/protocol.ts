@@ -2,8 +2,8 @@
  * Messages between the page and the simulation worker. Fields travel as
  * typed arrays whose buffers are transferred (never copied through JSON).
  */
-import type { ScenarioProblem } from '../../solver/io/ScenarioError.ts';
-import type { MeshFileContents } from '../../solver/io/scenarioMesh.ts';
+import type { ScenarioProblem } from '../../solver/scenario/ScenarioError.ts';
+import type { MeshFileContents } from '../../solver/scenario/scenarioMesh.ts';
 import type { MeshStatistics } from '../../solver/mesh/meshStatistics.ts';
 
 export type ToSimulation =

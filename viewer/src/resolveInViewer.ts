@@ -3,9 +3,9 @@
  * a file: parseScenario → resolveScenario, meshes through scenarioMesh; mesh
  * files come from those opened in the page. Throws ScenarioError (or Error).
  */
-import { parseScenario } from '../../solver/io/readScenario.ts';
-import { resolveScenario, type ResolvedScenario } from '../../solver/io/resolveScenario.ts';
-import { scenarioMesh, type MeshFileContents } from '../../solver/io/scenarioMesh.ts';
+import { parseScenario } from '../../solver/scenario/parseScenario.ts';
+import { resolveScenario, type ResolvedScenario } from '../../solver/scenario/resolveScenario.ts';
+import { scenarioMesh, type MeshFileContents } from '../../solver/scenario/scenarioMesh.ts';
 
 export function resolveInViewer(text: string, files: Record<string, MeshFileContents>): ResolvedScenario {
   return resolveScenario(parseScenario(text, 'scenario.yaml'), 'scenario.yaml', {

@@ -7,7 +7,7 @@ import { stringify } from 'yaml';
 import { SHAPES } from '../../meshes/shapes/index.ts';
 import { MODELS } from '../../solver/kinetics/models/index.ts';
 import { parseFormula } from '../../solver/kinetics/parseFormula.ts';
-import type { Scenario } from '../../solver/io/Scenario.ts';
+import type { Scenario } from '../../solver/scenario/Scenario.ts';
 import { el } from './dom.ts';
 
 export interface OpenedMesh {

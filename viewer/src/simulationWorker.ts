@@ -5,11 +5,11 @@
  * (state, and the surface when it grows) after each chunk the page has drawn.
  * Buffers are transferred. The stability analysis is analysisWorker's.
  */
-import type { ResolvedScenario } from '../../solver/io/resolveScenario.ts';
-import { ScenarioError } from '../../solver/io/ScenarioError.ts';
-import type { MeshFileContents } from '../../solver/io/scenarioMesh.ts';
+import type { ResolvedScenario } from '../../solver/scenario/resolveScenario.ts';
+import { ScenarioError } from '../../solver/scenario/ScenarioError.ts';
+import type { MeshFileContents } from '../../solver/scenario/scenarioMesh.ts';
 import { resolveInViewer } from './resolveInViewer.ts';
-import { SurfaceSimulation } from '../../solver/growth/SurfaceSimulation.ts';
+import { SurfaceSimulation } from '../../solver/run/SurfaceSimulation.ts';
 import { GrowthDegenerationError } from '../../solver/growth/GrowthDriver.ts';
 import { constantValues, steadyStatesOf, analysedStateIndex } from '../../solver/analysis/stabilityReport.ts';
 import { meshStatistics } from '../../solver/mesh/meshStatistics.ts';

@@ -1,14 +1,14 @@
 import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { RUN_FILES } from '../io/runFiles.ts';
+import { RUN_FILES } from '../run/runFiles.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { surfaceFigurePng, type FigurePanel } from '../io/surfaceFigure.ts';
-import { axisValues } from '../io/expandSweep.ts';
+import { axisValues } from './expandSweep.ts';
 import { VIEW_PRESETS } from '../io/surfaceView.ts';
-import { snapshotField, colormapOption, fixedRangeOption } from './runFrames.ts';
+import { snapshotField, colormapOption, fixedRangeOption } from '../run/runFrames.ts';
 import { readManifest } from './sweepPlan.ts';
 import { runStatus, readRunRecord } from './sweepTask.ts';
-import { UsageError } from './UsageError.ts';
+import { UsageError } from '../cli/UsageError.ts';
 
 export interface CollectOptions {
   /** CSV file (default DIR/sweep.csv) */

@@ -1,17 +1,17 @@
 import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
 import { createHash } from 'node:crypto';
 import { dirname, isAbsolute, join, relative, resolve } from 'node:path';
-import { parseCheckedYaml, parseScenario, compileSchema, pathText, validateScenario } from '../io/readScenario.ts';
-import type { Scenario } from '../io/Scenario.ts';
-import { SWEEP_FILE_SCHEMA, isSweepFileText, type SweepSpec } from '../io/Sweep.ts';
-import { ScenarioError, type ScenarioProblem } from '../io/ScenarioError.ts';
-import { expandSweep, applySweepPoint, sweepAxisProblems, pointLabel, varyingPaths, type SweepPoint } from '../io/expandSweep.ts';
-import { resolveScenario } from '../io/resolveScenario.ts';
+import { parseCheckedYaml, parseScenario, compileSchema, pathText, validateScenario } from '../scenario/parseScenario.ts';
+import type { Scenario } from '../scenario/Scenario.ts';
+import { SWEEP_FILE_SCHEMA, isSweepFileText, type SweepSpec } from './Sweep.ts';
+import { ScenarioError, type ScenarioProblem } from '../scenario/ScenarioError.ts';
+import { expandSweep, applySweepPoint, sweepAxisProblems, pointLabel, varyingPaths, type SweepPoint } from './expandSweep.ts';
+import { resolveScenario } from '../scenario/resolveScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
-import { nodeScenarioEnvironment } from './scenarioEnvironment.ts';
-import { UsageError } from './UsageError.ts';
-import { readTextFile } from './readTextFile.ts';
-import { VERSION } from './version.ts';
+import { nodeScenarioEnvironment } from '../scenario/nodeScenarioEnvironment.ts';
+import { UsageError } from '../cli/UsageError.ts';
+import { readTextFile } from '../cli/readTextFile.ts';
+import { VERSION } from '../cli/version.ts';
 
 /** Files of a planned sweep directory. */
 export const SWEEP_FILES = {

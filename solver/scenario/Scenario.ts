@@ -1,4 +1,4 @@
-import { SWEEP_SECTION_SCHEMA, type SweepSpec } from './Sweep.ts';
+import { SWEEP_SECTION_SCHEMA, type SweepSpec } from '../sweep/Sweep.ts';
 
 /**
  * A scenario file, as written by the user (JSON or YAML). Everything except

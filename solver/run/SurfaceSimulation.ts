@@ -1,9 +1,9 @@
-import type { ResolvedScenario } from '../io/resolveScenario.ts';
-import type { SavedState } from '../io/runFiles.ts';
+import type { ResolvedScenario } from '../scenario/resolveScenario.ts';
+import type { SavedState } from './runFiles.ts';
 import { ReactionDiffusionStepper } from '../integrate/ReactionDiffusionStepper.ts';
 import type { ReactionDiffusionSystem } from '../integrate/ReactionDiffusionSystem.ts';
-import { GrowthDriver } from './GrowthDriver.ts';
-import { transferToRefinement } from './transferToRefinement.ts';
+import { GrowthDriver } from '../growth/GrowthDriver.ts';
+import { transferToRefinement } from '../growth/transferToRefinement.ts';
 import { refineMidpoint } from '../mesh/refineMidpoint.ts';
 import { prolongField, type Refinement } from '../mesh/Refinement.ts';
 import { withPositions, type Mesh } from '../mesh/Mesh.ts';

@@ -1,11 +1,11 @@
 import { existsSync, readFileSync, rmSync, mkdirSync, appendFileSync } from 'node:fs';
 import { hostname } from 'node:os';
 import { join } from 'node:path';
-import { RUN_FILES } from '../io/runFiles.ts';
+import { RUN_FILES } from '../run/runFiles.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
-import { runScenarioFile, resumeRun, type RunOutcome } from './runScenario.ts';
+import { runScenarioFile, resumeRun, type RunOutcome } from '../run/runScenarioFile.ts';
 import { readManifest, SWEEP_FILES, type ManifestEntry } from './sweepPlan.ts';
-import { UsageError } from './UsageError.ts';
+import { UsageError } from '../cli/UsageError.ts';
 
 /**
  * Where a run of a sweep stands, read from its run directory alone (so any

@@ -1,6 +1,6 @@
 import type { Mesh } from '../mesh/Mesh.ts';
-import { writePly } from './writePly.ts';
-import { colorizeField, type ColormapName } from './colormap.ts';
+import { writePly } from '../io/writePly.ts';
+import { colorizeField, type ColormapName } from '../io/colormap.ts';
 import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
 
 /**

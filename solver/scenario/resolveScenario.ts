@@ -1,7 +1,7 @@
 import type { Mesh } from '../mesh/Mesh.ts';
 import type { Scenario, FieldValue, MeshSpec } from './Scenario.ts';
-import type { ScenarioSource } from './readScenario.ts';
-import { pathText, sortByLine } from './readScenario.ts';
+import type { ScenarioSource } from './parseScenario.ts';
+import { pathText, sortByLine } from './parseScenario.ts';
 import { ScenarioError, closestName, type ScenarioProblem } from './ScenarioError.ts';
 import { MODELS } from '../kinetics/models/index.ts';
 import type { KineticsModel } from '../kinetics/KineticsModel.ts';
@@ -15,7 +15,7 @@ import { seededRandom } from '../linalg/seededRandom.ts';
 import { numericalSteadyStates } from '../analysis/steadyStates.ts';
 import { smallMatrixEigenvalues } from '../analysis/smallMatrixEigenvalues.ts';
 import { turingAnalysis } from '../analysis/dispersion.ts';
-import { COLORMAP_NAMES, type ColormapName } from './colormap.ts';
+import { COLORMAP_NAMES, type ColormapName } from '../io/colormap.ts';
 import { evaluateSurfaceFormula, compileSpaceTimeFormula } from '../kinetics/surfaceField.ts';
 import type { GrowthLaw } from '../growth/GrowthLaw.ts';
 import { affineGrowth } from '../growth/affineGrowth.ts';

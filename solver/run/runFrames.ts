@@ -1,10 +1,10 @@
 import { existsSync, readFileSync, statSync } from 'node:fs';
 import { basename, join } from 'node:path';
 import { loadMeshFile } from '../io/meshFiles.ts';
-import { RUN_FILES, speciesFromProperties } from '../io/runFiles.ts';
+import { RUN_FILES, speciesFromProperties } from './runFiles.ts';
 import type { Mesh } from '../mesh/Mesh.ts';
 import { COLORMAP_NAMES, type ColormapName } from '../io/colormap.ts';
-import { UsageError } from './UsageError.ts';
+import { UsageError } from '../cli/UsageError.ts';
 
 export interface FrameRef {
   file: string;

@@ -1,11 +1,11 @@
 import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import cliProgress from 'cli-progress';
-import { parseScenario } from '../io/readScenario.ts';
-import { isSweepFileText } from '../io/Sweep.ts';
-import { resolveScenario, type ResolvedScenario } from '../io/resolveScenario.ts';
+import { parseScenario } from '../scenario/parseScenario.ts';
+import { isSweepFileText } from '../sweep/Sweep.ts';
+import { resolveScenario, type ResolvedScenario } from '../scenario/resolveScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
-import { RUN_FILES, frameName, encodeFrame, stateMetrics, metricsHeader, metricsRow, encodeState, decodeState, type SavedState } from '../io/runFiles.ts';
+import { RUN_FILES, frameName, encodeFrame, stateMetrics, metricsHeader, metricsRow, encodeState, decodeState, type SavedState } from './runFiles.ts';
 import { meshArea } from '../mesh/triangleAreas.ts';
 import { forgetMeshTopology, meshTopology } from '../mesh/meshTopology.ts';
 import { laplaceBeltramiEigenpairs, type Eigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
@@ -18,12 +18,12 @@ import { colorizeField } from '../io/colormap.ts';
 import { GrowthDegenerationError } from '../growth/GrowthDriver.ts';
 import { prolongField } from '../mesh/Refinement.ts';
 import type { Mesh } from '../mesh/Mesh.ts';
-import { nodeScenarioEnvironment, meshChecksum } from './scenarioEnvironment.ts';
-import { UsageError } from './UsageError.ts';
-import { readTextFile } from './readTextFile.ts';
-import { ScenarioError } from '../io/ScenarioError.ts';
-import { SurfaceSimulation } from '../growth/SurfaceSimulation.ts';
-import { VERSION } from './version.ts';
+import { nodeScenarioEnvironment, meshChecksum } from '../scenario/nodeScenarioEnvironment.ts';
+import { UsageError } from '../cli/UsageError.ts';
+import { readTextFile } from '../cli/readTextFile.ts';
+import { ScenarioError } from '../scenario/ScenarioError.ts';
+import { SurfaceSimulation } from './SurfaceSimulation.ts';
+import { VERSION } from '../cli/version.ts';
 
 export type StopReason = 'end' | 'steady-state' | 'blow-up' | 'interrupted' | 'degenerate';
 

@@ -3,7 +3,7 @@ import { availableParallelism } from 'node:os';
 import cliProgress from 'cli-progress';
 import { readManifest } from './sweepPlan.ts';
 import { runStatus, markFailed, type TaskOutcome } from './sweepTask.ts';
-import { progressMode } from './runScenario.ts';
+import { progressMode } from '../run/runScenarioFile.ts';
 
 export interface PoolOptions {
   /** worker threads (default: every core) */
@@ -93,7 +93,7 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
       let crashes = 0;
       /** Start a worker thread; one that dies mid-run records that run as failed and is replaced. */
       const spawn = () => {
-        const w = new Worker(new URL('./sweepWorker.mjs', import.meta.url), { workerData: { dir, retryFailed: options.retryFailed ?? false } });
+        const w = new Worker(new URL('./sweepWorkerSource.mjs', import.meta.url), { workerData: { dir, retryFailed: options.retryFailed ?? false } });
         pool.push(w);
         alive++;
         let current: number | undefined;

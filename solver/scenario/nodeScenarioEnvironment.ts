@@ -3,12 +3,12 @@ import { createHash } from 'node:crypto';
 import { join, resolve, dirname } from 'node:path';
 import type { Mesh } from '../mesh/Mesh.ts';
 import { loadMeshFile } from '../io/meshFiles.ts';
-import type { MeshSpec } from '../io/Scenario.ts';
-import type { LoadedMesh, ScenarioEnvironment } from '../io/resolveScenario.ts';
-import { RUN_FILES, decodeState } from '../io/runFiles.ts';
-import { loadSnapshot } from './runFrames.ts';
+import type { MeshSpec } from './Scenario.ts';
+import type { LoadedMesh, ScenarioEnvironment } from './resolveScenario.ts';
+import { RUN_FILES, decodeState } from '../run/runFiles.ts';
+import { loadSnapshot } from '../run/runFrames.ts';
 import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
-import { scenarioMesh } from '../io/scenarioMesh.ts';
+import { scenarioMesh } from './scenarioMesh.ts';
 
 /** sha256 of a mesh's positions and triangles, as stored (for records and resume checks). */
 export function meshChecksum(mesh: Mesh): string {
