@@ -1,5 +1,4 @@
-import type { ResolvedScenario } from '../scenario/resolveScenario.ts';
-import { constantValues, steadyStatesOf } from './stabilityReport.ts';
+import { constantValues, steadyStatesOf, type StabilityProblem } from './stabilityReport.ts';
 import { turingAnalysis } from './dispersion.ts';
 import { evaluateSurfaceFormula } from '../kinetics/surfaceField.ts';
 
@@ -40,7 +39,7 @@ export function axisValues(a: MapAxis): number[] {
  * modes fall in it), stable, oscillatory, unstable without diffusion, or no
  * such steady state. Other parameters keep the scenario's values.
  */
-export function parameterMap(r: ResolvedScenario, xAxis: MapAxis, yAxis: MapAxis, stateIndex: number, eigenvalues?: Float64Array): MapCell[] {
+export function parameterMap(r: StabilityProblem & { readonly diffusion: Readonly<Record<string, unknown>> }, xAxis: MapAxis, yAxis: MapAxis, stateIndex: number, eigenvalues?: Float64Array): MapCell[] {
   const names = r.kinetics.parameters;
   const base = constantValues(r);
   const xi = names.indexOf(xAxis.name), yi = names.indexOf(yAxis.name);

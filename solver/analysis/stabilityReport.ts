@@ -1,4 +1,6 @@
-import type { ResolvedScenario } from '../scenario/resolveScenario.ts';
+import type { Mesh } from '../mesh/Mesh.ts';
+import type { CompiledKinetics } from '../kinetics/compileKinetics.ts';
+import type { KineticsModel } from '../kinetics/KineticsModel.ts';
 import type { Eigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
 import { laplaceBeltramiEigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
@@ -24,6 +26,21 @@ export interface StabilityReport {
   surface: { vertices: number; area: number; modesComputed: number; largestEigenvalue: number; coversBand: boolean } | null;
 }
 
+/** What the stability analysis needs of a scenario (a resolved scenario is one). */
+export interface StabilityProblem {
+  readonly mesh: Mesh;
+  readonly species: readonly string[];
+  readonly kinetics: CompiledKinetics;
+  /** parameter and diffusion values, constants or per-vertex fields, in the kinetics' order */
+  readonly system: { readonly parameters: readonly (number | Float64Array)[]; readonly diffusion: readonly (number | Float64Array)[] };
+  /** a built-in model, whose closed-form steady states are used when it has them */
+  readonly kineticsModel?: Pick<KineticsModel, 'steadyStates'>;
+  /** seed of the Newton starts when the steady states are found numerically */
+  readonly seed: number;
+  /** the homogeneous steady state analysed by default */
+  readonly steadyStateIndex: number;
+}
+
 /** Surface-mean value of a constant-or-field quantity (lumped-mass weights). */
 function meanOf(v: number | Float64Array, mass: Float64Array, area: number): number {
   if (typeof v === 'number') return v;
@@ -33,7 +50,7 @@ function meanOf(v: number | Float64Array, mass: Float64Array, area: number): num
 }
 
 /** The constant parameter and diffusion values of a scenario (fields by their surface mean). */
-export function constantValues(r: ResolvedScenario, mass = lumpedMass(r.mesh)): { parameters: number[]; diffusion: number[]; notes: string[] } {
+export function constantValues(r: StabilityProblem, mass = lumpedMass(r.mesh)): { parameters: number[]; diffusion: number[]; notes: string[] } {
   let area = 0;
   for (const m of mass) area += m;
   const notes: string[] = [];
@@ -50,18 +67,13 @@ export function constantValues(r: ResolvedScenario, mass = lumpedMass(r.mesh)): 
 }
 
 /** Homogeneous steady states: the model's closed form if it has one, else Newton from many starts. */
-export function steadyStatesOf(r: ResolvedScenario, parameters: number[], seed = 1): SteadyState[] {
+export function steadyStatesOf(r: StabilityProblem, parameters: number[], seed = 1): SteadyState[] {
   const model = r.kineticsModel;
   if (model?.steadyStates) {
     const p = Object.fromEntries(r.kinetics.parameters.map((name, i) => [name, parameters[i]]));
     return model.steadyStates(p).map((v) => classifyState(r.kinetics, parameters, v, 'closed form'));
   }
   return numericalSteadyStates(r.kinetics, parameters, seed).map((v) => classifyState(r.kinetics, parameters, v, 'numerical'));
-}
-
-/** The steady state a scenario's analysis concerns: its initial.steadyState, else the first. */
-export function analysedStateIndex(r: ResolvedScenario): number {
-  return (r.summary.initial as { steadyState?: number } | undefined)?.steadyState ?? 0;
 }
 
 /**
@@ -74,9 +86,9 @@ export function modesToCoverBand(area: number, band: [number, number] | null | u
 }
 
 /** The unstable band of the analysed steady state (no surface needed), or null. */
-export function scenarioBand(r: ResolvedScenario): [number, number] | null {
+export function scenarioBand(r: StabilityProblem): [number, number] | null {
   const values = constantValues(r);
-  const state = steadyStatesOf(r, values.parameters, r.seed)[analysedStateIndex(r)];
+  const state = steadyStatesOf(r, values.parameters, r.seed)[r.steadyStateIndex];
   return state ? turingAnalysis(state.jacobian, values.diffusion).band : null;
 }
 
@@ -88,14 +100,14 @@ export function scenarioBand(r: ResolvedScenario): [number, number] | null {
  * (lumped mass, as the time stepping uses) are computed up to the band's upper
  * edge — by Weyl's law about area·k²/(4π) modes — at most `maxModes`.
  */
-export function stabilityReport(r: ResolvedScenario, options: { maxModes?: number; eigenpairs?: Eigenpairs; stateIndex?: number } = {}): StabilityReport & { eigenpairs: Eigenpairs | null } {
+export function stabilityReport(r: StabilityProblem, options: { maxModes?: number; eigenpairs?: Eigenpairs; stateIndex?: number } = {}): StabilityReport & { eigenpairs: Eigenpairs | null } {
   const mass = lumpedMass(r.mesh);
   let area = 0;
   for (const m of mass) area += m;
   const { parameters, diffusion, notes } = constantValues(r, mass);
   const nS = r.species.length;
   const states = steadyStatesOf(r, parameters, r.seed);
-  const stateIndex = options.stateIndex ?? analysedStateIndex(r);
+  const stateIndex = options.stateIndex ?? r.steadyStateIndex;
   const chosen = states[stateIndex];
   const named = (values: number[]) => Object.fromEntries(r.species.map((s, i) => [s, values[i]]));
   const report: StabilityReport & { eigenpairs: Eigenpairs | null } = {

@@ -10,6 +10,7 @@ import { compileExplicitKernel, compileImexRhsKernel, type DiffusionKind, type E
 import { compileFusedCg, type FusedCgSolver } from './fusedConjugateGradient.ts';
 import { diffusionStiffness } from './diffusionStiffness.ts';
 import type { RowProductPlan } from './rowProductCode.ts';
+import { CG_MAX_ITERATIONS, CG_TOLERANCE } from '../defaults.ts';
 
 export type SchemeName = 'explicit' | 'imex';
 export type LinearSolverName = 'cg' | 'cholesky';
@@ -72,9 +73,10 @@ export class ReactionDiffusionStepper {
   totalIterations = 0;
   stepsTaken = 0;
 
+  /** `assembled`: K and lumped M of `system.mesh` when the caller has them already (they are not modified). */
   constructor(system: ReactionDiffusionSystem, options: StepperOptions, assembled?: { stiffness: CsrMatrix; mass: Float64Array }) {
     this.system = system;
-    this.options = { solver: 'cg', tolerance: 1e-8, maxIterations: 2000, growing: false, ...options };
+    this.options = { solver: 'cg', tolerance: CG_TOLERANCE, maxIterations: CG_MAX_ITERATIONS, growing: false, ...options };
     const { mesh, kinetics } = system;
     this.mesh = mesh;
     const n = mesh.positions.length / 3;
@@ -84,8 +86,10 @@ export class ReactionDiffusionStepper {
     const dt = this.options.dt;
     if (!(dt > 0) || !Number.isFinite(dt)) throw new Error(`time step must be a positive number, got ${dt}`);
     if (system.diffusion.length !== nS) throw new Error(`${system.diffusion.length} diffusion coefficients for ${nS} species`);
-    const stiffness = assembled?.stiffness ?? cotanStiffness(mesh);
-    const mass = assembled?.mass ?? lumpedMass(mesh);
+    // operators assembled by the caller are read, never written: a growing surface reassembles into copies
+    const growing = this.options.growing;
+    const stiffness = assembled ? (growing ? { ...assembled.stiffness, values: assembled.stiffness.values.slice() } : assembled.stiffness) : cotanStiffness(mesh);
+    const mass = assembled ? (growing ? assembled.mass.slice() : assembled.mass) : lumpedMass(mesh);
     this.mass = mass;
     const explicit = this.options.scheme === 'explicit';
     const rowScale = explicit ? mass.map((m) => 1 / m) : undefined;

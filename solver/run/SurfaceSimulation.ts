@@ -38,7 +38,8 @@ export class SurfaceSimulation {
       for (let k = 0; k < saved.growth.refinements; k++) this.refine();
       this.system = { ...this.system, mesh: withPositions(this.system.mesh, saved.growth.positions.slice()) };
     }
-    this.stepper = new ReactionDiffusionStepper(this.system, this.stepperOptions());
+    // the operators the scenario assembled belong to its start mesh: reused unless the surface has moved or been refined
+    this.stepper = new ReactionDiffusionStepper(this.system, this.stepperOptions(), saved?.growth ? undefined : r.operators);
     this.edgeAtRefinement = saved?.growth?.edgeAtRefinement ?? meanEdge(this.system.mesh);
     this.stepper.setState(saved ? saved.state : r.initial);
     const step = saved?.step ?? 0;

@@ -11,7 +11,7 @@ import type { MeshFileContents } from '../../solver/scenario/scenarioMesh.ts';
 import { resolveInViewer } from './resolveInViewer.ts';
 import { SurfaceSimulation } from '../../solver/run/SurfaceSimulation.ts';
 import { GrowthDegenerationError } from '../../solver/growth/GrowthDriver.ts';
-import { constantValues, steadyStatesOf, analysedStateIndex } from '../../solver/analysis/stabilityReport.ts';
+import { constantValues, steadyStatesOf } from '../../solver/analysis/stabilityReport.ts';
 import { meshStatistics } from '../../solver/mesh/meshStatistics.ts';
 import { meshArea } from '../../solver/mesh/triangleAreas.ts';
 import type { FromSimulation, ToSimulation } from './protocol.ts';
@@ -146,7 +146,7 @@ function load(text: string, files: Record<string, MeshFileContents>) {
 function restState(r: ResolvedScenario): (number | null)[] {
   try {
     const parameters = constantValues(r).parameters;
-    const state = steadyStatesOf(r, parameters, r.seed)[analysedStateIndex(r)];
+    const state = steadyStatesOf(r, parameters, r.seed)[r.steadyStateIndex];
     return r.species.map((_, i) => (state ? state.values[i] : null));
   } catch {
     return r.species.map(() => null);

@@ -1,0 +1,74 @@
+/**
+ * Every default Placode chooses for the user, in one place: what a scenario,
+ * a command or the viewer does when it is not told otherwise. Kept free of
+ * imports, so the command line can read it without loading any solver code.
+ */
+
+/** Seed of every random choice of a run (noise, random spot centres). */
+export const DEFAULT_SEED = 1;
+
+// ---- meshes
+/** Vertex target of a built-in shape, and the most any mesh may have after its refinements. */
+export const DEFAULT_SHAPE_VERTICES = 10_000;
+export const MAX_SHAPE_VERTICES = 5_000_000;
+/** Eigenvalues closer than this relative gap are reported as one multiple eigenvalue. */
+export const EIGEN_CLUSTER_TOLERANCE = 0.01;
+/** Eigenpairs `placode modes` computes. */
+export const DEFAULT_MODE_COUNT = 20;
+
+// ---- time stepping
+/** Output interval when the scenario gives none: end / OUTPUTS_PER_RUN. */
+export const OUTPUTS_PER_RUN = 20;
+/** The explicit scheme's default step, as a fraction of the positivity bound. */
+export const EXPLICIT_STEP_FRACTION = 0.9;
+/** Jacobi-CG: relative residual tolerance and iteration cap per solve. */
+export const CG_TOLERANCE = 1e-8;
+export const CG_MAX_ITERATIONS = 2000;
+/**
+ * `solver: auto` factorises M + dt·D·K once (Cholesky: cost independent of the
+ * conditioning, ~0.7 kB per vertex per distinct D) only on meshes up to
+ * AUTO_CHOLESKY_VERTICES and only when Jacobi-CG would need many iterations,
+ * i.e. when dt·D·λ_max(M⁻¹K) exceeds AUTO_CHOLESKY_STIFFNESS (CG iterations
+ * grow like its square root); otherwise warm-started CG is faster and needs
+ * ~200 bytes per vertex.
+ */
+export const AUTO_CHOLESKY_VERTICES = 60_000;
+export const AUTO_CHOLESKY_STIFFNESS = 100;
+
+// ---- growth
+/** Largest relative change of a vertex's area between geometry updates. */
+export const GROWTH_AREA_TOLERANCE = 1e-3;
+/** Most vertices refinement during growth may reach. */
+export const GROWTH_REFINE_MAX_VERTICES = 400_000;
+
+// ---- analysis
+/** Surface modes of the per-frame spectrum, on meshes up to AUTO_SPECTRUM_VERTICES (0 above). */
+export const AUTO_SPECTRUM_MODES = 40;
+export const AUTO_SPECTRUM_VERTICES = 50_000;
+/** How patches are cut out of a field. */
+export const DEFAULT_THRESHOLD_RULE = 'mid-range';
+/** Most surface eigenpairs `placode stability` computes to cover the unstable band. */
+export const STABILITY_MAX_MODES = 200;
+/** Most eigenpairs a growing run computes at each output to follow its predicted mode. */
+export const MAX_TRACKED_MODES = 300;
+
+// ---- painting, figures, exports
+export const DEFAULT_COLORMAP = 'viridis';
+/** Names of the colormaps (`solver/io/colormap.ts` has their tables). */
+export const COLORMAP_CHOICES = ['viridis', 'magma', 'inferno', 'plasma', 'cividis', 'diverging', 'greys'] as const;
+export const DEFAULT_VIEW = 'iso';
+export const FIGURE_SIZE = { width: 900, height: 700, dpi: 150 } as const;
+/** Width in pixels of one run's picture on a sweep's contact sheet. */
+export const SHEET_THUMBNAIL = 220;
+/** Seconds of playback of an animated glTF export of a whole run. */
+export const ANIMATION_SECONDS = 10;
+/** Formats of a frame or final state (besides PLY, a run writes those its scenario lists). */
+export const SNAPSHOT_FORMAT_CHOICES = ['ply', 'glb', 'obj', 'csv'] as const;
+
+// ---- running
+/** Longest stretch of stepping between two looks at signals, progress and stop requests (command line). */
+export const RUN_CHUNK_MS = 200;
+/** The same in the viewer's worker, which posts a frame after each chunk. */
+export const VIEWER_CHUNK_MS = 25;
+/** Port of `placode view` on 127.0.0.1. */
+export const VIEWER_PORT = 5178;

@@ -1,0 +1,26 @@
+import type { ScenarioSource } from './parseScenario.ts';
+import { pathText, sortByLine } from './parseScenario.ts';
+import { ScenarioError, type ScenarioProblem } from './ScenarioError.ts';
+
+/** Collects a scenario's problems with their place in the file; `fail` throws them all at once. */
+export class Problems {
+  readonly list: ScenarioProblem[] = [];
+  constructor(private readonly source: ScenarioSource) {}
+  add(path: (string | number)[], message: string): void {
+    this.list.push({ path: pathText(path), message, ...this.source.locate(path) });
+  }
+  get any(): boolean {
+    return this.list.length > 0;
+  }
+  fail(file: string): void {
+    if (this.list.length) throw new ScenarioError(file, sortByLine(this.list));
+  }
+}
+
+/** What every section resolver works from: the scenario, where it came from, and what it found so far. */
+export interface ResolveContext {
+  source: ScenarioSource;
+  file: string;
+  problems: Problems;
+  warnings: string[];
+}

@@ -1,0 +1,66 @@
+import type { FieldValue } from './Scenario.ts';
+import type { ResolveContext } from './Problems.ts';
+import { closestName } from './ScenarioError.ts';
+import { MODELS } from '../kinetics/models/index.ts';
+import type { KineticsModel } from '../kinetics/KineticsModel.ts';
+import { compileKinetics, KineticsError, type CompiledKinetics } from '../kinetics/compileKinetics.ts';
+
+/** The `kinetics` section resolved: a built-in model or the user's own species and reactions, compiled. */
+export interface KineticsPlan {
+  model?: KineticsModel;
+  species: string[];
+  reactions: Record<string, string>;
+  /** every parameter (the model's defaults overridden by the scenario), in the kinetics' order */
+  parameterSpec: Record<string, FieldValue>;
+  /** undefined when the section has problems */
+  kinetics?: CompiledKinetics;
+}
+
+/**
+ * The kinetics section: a built-in model with its parameters checked against
+ * the model's, or the user's own species and reaction formulas; compiled when
+ * nothing is wrong (formula problems are reported under their keys).
+ */
+export function resolveKinetics(ctx: ResolveContext): KineticsPlan {
+  const k = ctx.source.scenario.kinetics;
+  const { problems } = ctx;
+  const plan: KineticsPlan = { species: [], reactions: {}, parameterSpec: {} };
+  if (k.model !== undefined) {
+    const model = MODELS[k.model];
+    if (!model) {
+      const hint = closestName(k.model, Object.keys(MODELS));
+      problems.add(['kinetics', 'model'], `unknown model "${k.model}"${hint ? ` (did you mean "${hint}"?)` : ''}; built-in models: ${Object.keys(MODELS).join(', ')}, or give species and reactions for your own`);
+    } else {
+      plan.model = model;
+      if (k.species || k.reactions) problems.add(['kinetics', k.species ? 'species' : 'reactions'], `give either a built-in model or your own species and reactions, not both`);
+      plan.species = [...model.species];
+      plan.reactions = { ...model.reactions };
+      for (const [name, p] of Object.entries(model.parameters)) plan.parameterSpec[name] = p.default;
+      for (const [name, v] of Object.entries(k.parameters ?? {})) {
+        if (!(name in model.parameters)) {
+          const hint = closestName(name, Object.keys(model.parameters));
+          problems.add(['kinetics', 'parameters', name], `${model.title} has no parameter "${name}"${hint ? ` (did you mean "${hint}"?)` : ''}; its parameters: ${Object.keys(model.parameters).join(', ')}`);
+        } else plan.parameterSpec[name] = v;
+      }
+    }
+  } else {
+    if (!k.species) problems.add(['kinetics'], 'name a built-in model (model: gray-scott, …) or list your own species and reactions');
+    else if (!k.reactions) problems.add(['kinetics'], 'missing "reactions": a rate formula for each species');
+    plan.species = k.species ?? [];
+    plan.reactions = k.reactions ?? {};
+    Object.assign(plan.parameterSpec, k.parameters ?? {});
+  }
+  if (plan.species.length && !problems.any) {
+    try {
+      plan.kinetics = compileKinetics(plan.species, plan.reactions, Object.keys(plan.parameterSpec));
+    } catch (e) {
+      if (!(e instanceof KineticsError)) throw e;
+      for (const p of e.problems) {
+        const [kind, name] = p.key.split('.');
+        const path = kind === 'reactions' ? ['kinetics', 'reactions', name] : kind === 'parameters' ? ['kinetics', 'parameters', name] : ['kinetics', 'species'];
+        problems.add(path, p.message);
+      }
+    }
+  }
+  return plan;
+}
