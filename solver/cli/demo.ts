@@ -1,4 +1,4 @@
-import { mkdirSync, readFileSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { buildShape } from '../../meshes/shapes/index.ts';
 import { meshStatistics } from '../mesh/meshStatistics.ts';
@@ -9,6 +9,7 @@ import { runScenarioFile } from '../run/runScenarioFile.ts';
 import { runFigure } from './figure.ts';
 import { loadMeshFile } from '../io/meshFiles.ts';
 import { speciesFromProperties, RUN_FILES } from '../run/runFiles.ts';
+import { readRunRecord } from '../run/runDirectory.ts';
 import { thresholdComponents } from '../analysis/thresholdComponents.ts';
 
 /** The example scenario the demo runs. */
@@ -53,10 +54,10 @@ export async function runDemo(outDir: string): Promise<void> {
   const final = loadMeshFile(join(runDir, RUN_FILES.final));
   const u = speciesFromProperties(final.vertexData).u;
   const patches = thresholdComponents(final.mesh, u).patches;
-  const record = JSON.parse(readFileSync(join(runDir, RUN_FILES.record), 'utf8'));
-  const counts = record.analysis.frames.map((f: { patches: unknown[] }) => f.patches.length);
+  const record = readRunRecord(runDir);
+  const counts = record.analysis.frames.map((f) => f.patches.length);
   say(`  activator spots along the run: ${counts.slice(1).join(' → ')}; at t=${outcome.time} ${patches.length} patches above the mid-range`);
-  const inserted = record.analysis.events.filter((e: { kind: string }) => e.kind === 'insertion' || e.kind === 'split').length;
+  const inserted = record.analysis.events.filter((e) => e.kind === 'insertion' || e.kind === 'split').length;
   say(`  ${inserted} spot insertions or splits while the paddle grew (record.json → analysis.events)`);
   const figure = runFigure(runDir, { out: join(outDir, 'paddle-sheet.png'), sheet: true, species: 'u', colormap: 'magma', view: 'top', title: 'Growing limb-bud paddle: activator u', width: 1400, height: 1000, dpi: 150, force: true });
   say(`  figure of every frame: ${figure}`);

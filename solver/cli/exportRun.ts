@@ -5,7 +5,7 @@ import { colorizeField } from '../io/colormap.ts';
 import { writeAnimatedGlb } from '../io/writeGlb.ts';
 import { encodeSnapshot, type SnapshotFormat } from '../io/encodeSnapshot.ts';
 import { runFrames, loadSnapshot, speciesRange, colormapOption, fixedRangeOption } from '../run/runFrames.ts';
-import { UsageError } from './UsageError.ts';
+import { UsageError } from '../UsageError.ts';
 
 export type ExportFormat = SnapshotFormat;
 

@@ -2,7 +2,7 @@ import { writeFileAtomic } from '../io/meshFiles.ts';
 import { runFrames, snapshotField, speciesRange, colormapOption, fixedRangeOption } from '../run/runFrames.ts';
 import { surfaceFigurePng, surfaceFigureSvg, type FigurePanel } from '../io/surfaceFigure.ts';
 import { VIEW_PRESETS } from '../io/surfaceView.ts';
-import { UsageError } from './UsageError.ts';
+import { UsageError } from '../UsageError.ts';
 
 export interface FigureOptions {
   out: string;

@@ -4,7 +4,7 @@ import type { Mesh } from '../mesh/Mesh.ts';
 import { loadMeshFile } from '../io/meshFiles.ts';
 import { repairMesh as repairMeshPure, type MeshRepairs } from '../mesh/repairMesh.ts';
 import { validateMesh } from '../mesh/validateMesh.ts';
-import { UsageError } from './UsageError.ts';
+import { UsageError } from '../UsageError.ts';
 
 export interface MeshSourceOptions {
   param?: string[];

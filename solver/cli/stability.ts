@@ -4,7 +4,7 @@ import { stabilityReport } from '../analysis/stabilityReport.ts';
 import { parameterMap, parameterMapCsv, type MapAxis } from '../analysis/parameterMap.ts';
 import { parameterMapSvg } from '../io/parameterMapSvg.ts';
 import { saveModeFile } from './saveModeFile.ts';
-import { UsageError } from './UsageError.ts';
+import { UsageError } from '../UsageError.ts';
 
 export interface StabilityOptions {
   json?: boolean;

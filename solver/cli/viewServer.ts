@@ -1,7 +1,9 @@
 import { createServer, type Server, type IncomingMessage, type ServerResponse } from 'node:http';
-import { createReadStream, existsSync, readFileSync, realpathSync, statSync } from 'node:fs';
+import { createReadStream, existsSync, realpathSync, statSync } from 'node:fs';
 import { extname, isAbsolute, join, relative, resolve, sep, basename } from 'node:path';
 import { RUN_FILES } from '../run/runFiles.ts';
+import { peekRunRecord } from '../run/runDirectory.ts';
+import type { RunRecord } from '../run/RunRecord.ts';
 
 const TYPES: Record<string, string> = {
   '.html': 'text/html; charset=utf-8',
@@ -116,13 +118,7 @@ function sendJson(res: ServerResponse, data: unknown) {
 
 /** What the page needs of a run directory: its frames with their times, the final state, its scenario and its painting. */
 export function runListing(runDir: string): { name: string; frames: { file: string; time: number; step: number }[]; final?: string; scenarioText?: string; status?: string; output?: unknown } {
-  const recordFile = join(runDir, RUN_FILES.record);
-  let record: { frames?: { file: string; time: number; step: number }[]; scenarioText?: string; status?: string; resolved?: { output?: unknown } } = {};
-  try {
-    record = JSON.parse(readFileSync(recordFile, 'utf8'));
-  } catch {
-    record = {};
-  }
+  const record: Partial<RunRecord> = peekRunRecord(runDir) ?? {};
   const frames = (record.frames ?? []).filter((f) => typeof f.file === 'string' && insideRoot(runDir, '/' + f.file) && existsSync(join(runDir, f.file)));
   return {
     name: basename(runDir),
@@ -130,6 +126,6 @@ export function runListing(runDir: string): { name: string; frames: { file: stri
     final: existsSync(join(runDir, RUN_FILES.final)) ? RUN_FILES.final : undefined,
     scenarioText: record.scenarioText,
     status: record.status,
-    output: record.resolved?.output,
+    output: (record.resolved as { output?: unknown } | undefined)?.output,
   };
 }

@@ -1,10 +1,11 @@
-import { existsSync, readFileSync, statSync } from 'node:fs';
+import { existsSync, statSync } from 'node:fs';
 import { basename, join } from 'node:path';
 import { loadMeshFile } from '../io/meshFiles.ts';
 import { RUN_FILES, speciesFromProperties } from './runFiles.ts';
+import { readRunRecord } from './runDirectory.ts';
 import type { Mesh } from '../mesh/Mesh.ts';
 import { COLORMAP_NAMES, type ColormapName } from '../io/colormap.ts';
-import { UsageError } from '../cli/UsageError.ts';
+import { UsageError } from '../UsageError.ts';
 
 export interface FrameRef {
   file: string;
@@ -16,9 +17,7 @@ export interface FrameRef {
 export function runFrames(input: string): { isRun: boolean; frames: FrameRef[]; final?: string } {
   if (!existsSync(input)) throw new UsageError(`${input}: no such run directory or frame file`);
   if (!statSync(input).isDirectory()) return { isRun: false, frames: [{ file: input }] };
-  const record = join(input, RUN_FILES.record);
-  if (!existsSync(record)) throw new UsageError(`${input} is not a run directory (no ${RUN_FILES.record})`);
-  const frames: { file: string; time: number }[] = JSON.parse(readFileSync(record, 'utf8')).frames ?? [];
+  const frames = readRunRecord(input).frames ?? [];
   const final = join(input, RUN_FILES.final);
   return { isRun: true, frames: frames.map((f) => ({ file: join(input, f.file), time: f.time })), final: existsSync(final) ? final : undefined };
 }

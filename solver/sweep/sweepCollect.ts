@@ -7,8 +7,9 @@ import { axisValues } from './expandSweep.ts';
 import { VIEW_PRESETS } from '../io/surfaceView.ts';
 import { snapshotField, colormapOption, fixedRangeOption } from '../run/runFrames.ts';
 import { readManifest } from './sweepPlan.ts';
-import { runStatus, readRunRecord } from './sweepTask.ts';
-import { UsageError } from '../cli/UsageError.ts';
+import { runStatus } from './sweepTask.ts';
+import { peekRunRecord } from '../run/runDirectory.ts';
+import { UsageError } from '../UsageError.ts';
 
 export interface CollectOptions {
   /** CSV file (default DIR/sweep.csv) */
@@ -31,17 +32,6 @@ function csvField(v: unknown): string {
   return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 
-interface Record_ {
-  status: string;
-  stop?: { reason: string; time: number; step: number; message: string };
-  performance?: { steppingSeconds: number };
-  analysis?: {
-    species: string;
-    prediction?: { band: [number, number] | null; fastest: { k2: number; rate: number } | null; predicted: { index: number; eigenvalue: number; rate: number; multiplicity: number } | null };
-    frames: { patches: { area: number }[]; dominantEigenvalue?: number; dominantFraction?: number }[];
-  };
-}
-
 /**
  * `placode sweep collect`: one CSV row per run (its varied values, state,
  * stop, timings, the linear-stability prediction on its surface, the final
@@ -58,7 +48,7 @@ export function collectSweep(dirArg: string, o: CollectOptions = {}): { csv: str
   let species = o.species;
   let missing = 0;
   for (const e of entries) {
-    const read = readRunRecord<Record_>(dir, e);
+    const read = peekRunRecord(join(dir, e.run));
     const status = runStatus(dir, e, { record: read });
     const record = read ?? undefined;
     const run = join(dir, e.run);

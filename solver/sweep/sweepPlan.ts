@@ -9,9 +9,9 @@ import { expandSweep, applySweepPoint, sweepAxisProblems, pointLabel, varyingPat
 import { resolveScenario } from '../scenario/resolveScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { nodeScenarioEnvironment } from '../scenario/nodeScenarioEnvironment.ts';
-import { UsageError } from '../cli/UsageError.ts';
-import { readTextFile } from '../cli/readTextFile.ts';
-import { VERSION } from '../cli/version.ts';
+import { UsageError } from '../UsageError.ts';
+import { readTextFile } from '../io/readTextFile.ts';
+import { VERSION } from '../version.ts';
 
 /** Files of a planned sweep directory. */
 export const SWEEP_FILES = {

@@ -3,7 +3,7 @@ import { availableParallelism } from 'node:os';
 import cliProgress from 'cli-progress';
 import { readManifest } from './sweepPlan.ts';
 import { runStatus, markFailed, type TaskOutcome } from './sweepTask.ts';
-import { progressMode } from '../run/runScenarioFile.ts';
+import { progressMode } from '../run/progress.ts';
 
 export interface PoolOptions {
   /** worker threads (default: every core) */

@@ -5,8 +5,8 @@ import { fileURLToPath } from 'node:url';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { readManifest } from './sweepPlan.ts';
 import { runStatus } from './sweepTask.ts';
-import { UsageError } from '../cli/UsageError.ts';
-import { VERSION } from '../cli/version.ts';
+import { UsageError } from '../UsageError.ts';
+import { VERSION } from '../version.ts';
 
 export interface SlurmOptions {
   partition?: string;

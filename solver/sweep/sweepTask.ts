@@ -2,10 +2,12 @@ import { existsSync, readFileSync, rmSync, mkdirSync, appendFileSync } from 'nod
 import { hostname } from 'node:os';
 import { join } from 'node:path';
 import { RUN_FILES } from '../run/runFiles.ts';
+import { peekRunRecord } from '../run/runDirectory.ts';
+import type { RunRecord } from '../run/RunRecord.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { runScenarioFile, resumeRun, type RunOutcome } from '../run/runScenarioFile.ts';
 import { readManifest, SWEEP_FILES, type ManifestEntry } from './sweepPlan.ts';
-import { UsageError } from '../cli/UsageError.ts';
+import { UsageError } from '../UsageError.ts';
 
 /**
  * Where a run of a sweep stands, read from its run directory alone (so any
@@ -22,19 +24,8 @@ export interface RunStatus {
   message?: string;
 }
 
-/** A run's record.json as parsed: undefined when there is none, null when it cannot be read. */
-export function readRunRecord<T extends { status: string; stop?: { message: string } }>(dir: string, entry: ManifestEntry): T | null | undefined {
-  const recordFile = join(dir, entry.run, RUN_FILES.record);
-  if (!existsSync(recordFile)) return undefined;
-  try {
-    return JSON.parse(readFileSync(recordFile, 'utf8'));
-  } catch {
-    return null;
-  }
-}
-
 /** The state of a run; `read` is its record when the caller has read it already (readRunRecord). */
-export function runStatus(dir: string, entry: ManifestEntry, read?: { record: { status: string; stop?: { message: string } } | null | undefined }): RunStatus {
+export function runStatus(dir: string, entry: ManifestEntry, read?: { record: RunRecord | null | undefined }): RunStatus {
   const failure = join(dir, entry.run, SWEEP_FILES.failure);
   if (existsSync(failure)) {
     try {
@@ -43,7 +34,7 @@ export function runStatus(dir: string, entry: ManifestEntry, read?: { record: { 
       return { state: 'failed', message: `${failure} cannot be read` };
     }
   }
-  const record = read ? read.record : readRunRecord(dir, entry);
+  const record = read ? read.record : peekRunRecord(join(dir, entry.run));
   if (record === undefined) return { state: 'pending' };
   if (record === null) return { state: 'running', message: 'record.json cannot be read: the run will start again' };
   switch (record.status) {

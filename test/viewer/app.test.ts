@@ -265,7 +265,7 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     await setUpText(page, GROWING);
     const start = await state(page);
     await page.click('#run');
-    await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.messages[0]?.includes('reached the end time'), null, { timeout: 60_000 });
+    await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.messages[0]?.includes('finished at t='), null, { timeout: 60_000 });
     const end = await state(page);
     expect(end.time).toBe(400);
     expect(end.frames).toBe(5);
@@ -286,7 +286,7 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     await stroke(page, box.x + box.width / 2, box.y + box.height / 2);
     await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.strokes > 0);
     await page.click('#run');
-    await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.messages[0]?.includes('reached the end time'), null, { timeout: 60_000 });
+    await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.messages[0]?.includes('finished at t='), null, { timeout: 60_000 });
     // the rim of the grown sphere on screen, along the middle row of the stage (the colour bar excluded)
     const shot = await stagePixels(page);
     const row = Math.round(shot.png.height / 2);
@@ -304,7 +304,7 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     const small = QUIET.replace('vertices: 2000', 'vertices: 800').replace('end: 100000', 'end: 60') + 'initial: {spots: {count: 3, radius: 0.05, values: {u: 0.5, v: 0.25}}}\n';
     await setUpText(page, small);
     await page.click('#run');
-    await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.messages[0]?.includes('reached the end time'), null, { timeout: 60_000 });
+    await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.messages[0]?.includes('finished at t='), null, { timeout: 60_000 });
     await page.click('[data-tab="export-panel"]');
     await page.fill('#png-width', '640');
     await page.fill('#png-height', '480');

@@ -285,7 +285,7 @@ worker.onmessage = (event: MessageEvent<FromSimulation>) => {
     }
     case 'stopped':
       app.running = false;
-      say(m.message, m.reason === 'end' ? 'info' : 'error');
+      say(m.message, m.reason === 'end' || m.reason === 'steady-state' ? 'info' : 'error');
       status();
       break;
     case 'error':

@@ -81,5 +81,5 @@ export type FromSimulation =
       /** a frame to keep on the timeline (at the scenario's output times) */
       keep: boolean;
     }
-  | { type: 'stopped'; reason: 'end' | 'blow-up' | 'degenerate'; message: string }
+  | { type: 'stopped'; reason: 'end' | 'steady-state' | 'blow-up' | 'degenerate'; message: string }
   | { type: 'error'; message: string };

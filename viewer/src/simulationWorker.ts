@@ -1,26 +1,27 @@
 /// <reference lib="webworker" />
 /**
  * The simulation worker: resolves a scenario exactly as the command line does
- * (resolveInViewer), steps it in chunks of about 25 ms, and posts a frame
- * (state, and the surface when it grows) after each chunk the page has drawn.
- * Buffers are transferred. The stability analysis is analysisWorker's.
+ * (resolveInViewer) and runs it with the command line's own run loop
+ * (RunEngine) in chunks of about VIEWER_CHUNK_MS, posting a frame (state, and
+ * the surface when it grows) after each chunk the page has drawn and at every
+ * output time. Buffers are transferred. The stability analysis is
+ * analysisWorker's.
  */
 import type { ResolvedScenario } from '../../solver/scenario/resolveScenario.ts';
 import { ScenarioError } from '../../solver/scenario/ScenarioError.ts';
 import type { MeshFileContents } from '../../solver/scenario/scenarioMesh.ts';
 import { resolveInViewer } from './resolveInViewer.ts';
-import { SurfaceSimulation } from '../../solver/run/SurfaceSimulation.ts';
-import { GrowthDegenerationError } from '../../solver/growth/GrowthDriver.ts';
+import { RunEngine } from '../../solver/run/RunEngine.ts';
 import { constantValues, steadyStatesOf } from '../../solver/analysis/stabilityReport.ts';
 import { meshStatistics } from '../../solver/mesh/meshStatistics.ts';
 import { meshArea } from '../../solver/mesh/triangleAreas.ts';
+import { VIEWER_CHUNK_MS } from '../../solver/defaults.ts';
 import type { FromSimulation, ToSimulation } from './protocol.ts';
 
 declare const self: DedicatedWorkerGlobalScope;
 
 let resolved: ResolvedScenario | undefined;
-let sim: SurfaceSimulation | undefined;
-let step = 0;
+let engine: RunEngine | undefined;
 let running = false;
 let waitingForAck = false;
 let pendingFrame = false;
@@ -35,13 +36,13 @@ let stopped = false;
 const post = (m: FromSimulation, transfer: Transferable[] = []) => self.postMessage(m, transfer);
 
 function send(keep: boolean) {
-  if (!sim || !resolved) return;
+  if (!engine || !resolved) return;
   if (waitingForAck && !keep) {
     pendingFrame = true;
     return;
   }
-  const surface = sim.stepper.surface;
-  const state = sim.stepper.state.slice();
+  const surface = engine.surface;
+  const state = engine.state.slice();
   let positions: Float64Array | undefined;
   let triangles: Uint32Array | undefined;
   if (surface.triangles !== lastTriangles) {
@@ -58,51 +59,43 @@ function send(keep: boolean) {
   if (triangles) transfer.push(triangles.buffer);
   waitingForAck = true;
   pendingFrame = false;
-  post({ type: 'frame', time: step * resolved.dt, step, state, positions, triangles, stepsPerSecond: rate, growthFactor, running, keep }, transfer);
+  post({ type: 'frame', time: engine.time, step: engine.step, state, positions, triangles, stepsPerSecond: rate, growthFactor, running, keep }, transfer);
 }
 
-function stop(reason: 'end' | 'blow-up' | 'degenerate', message: string) {
+function stop(reason: 'end' | 'steady-state' | 'blow-up' | 'degenerate', message: string) {
   running = false;
   stopped = true;
   send(true);
   post({ type: 'stopped', reason, message });
 }
 
-/** Step for about 25 ms (or `limit` steps); false when the run stopped. */
+/** Step for about VIEWER_CHUNK_MS (or `limit` steps), posting a frame to keep at every output; false when the run stopped. */
 function chunk(limit = Infinity): boolean {
-  const r = resolved!, s = sim!;
+  const e = engine!;
   const t0 = performance.now();
-  let taken = 0;
-  const every = r.output.everySteps;
-  while (taken < limit && step < r.steps) {
-    try {
-      if (s.driver) s.advanceGeometry(step, step % every === 0);
-    } catch (e) {
-      if (!(e instanceof GrowthDegenerationError)) throw e;
-      stop('degenerate', e.message);
-      return false;
-    }
-    if (!s.stepper.step(step * r.dt)) {
-      s.stepper.setState(s.stepper.previous);
-      stop('blow-up', `blow-up at t=${((step + 1) * r.dt).toPrecision(6)}: a value became NaN or infinite. The state shown is the last good one. Try a smaller time step${r.scheme === 'explicit' ? ' or the IMEX scheme' : ''}.`);
-      return false;
-    }
-    step++;
-    taken++;
-    if (step % every === 0) send(true);
-    if (performance.now() - t0 > 25) break;
+  const from = e.step;
+  let ended = false;
+  while (!ended && e.step - from < limit && !e.finished) {
+    const ev = e.advance({ deadline: t0 + VIEWER_CHUNK_MS, maxSteps: limit - (e.step - from) });
+    if (ev.kind === 'failed') {
+      stop(ev.reason, `${ev.message}. The state shown is the last good one (t=${e.time.toPrecision(6)}).${ev.advice ? ` ${ev.advice}` : ''}`);
+      ended = true;
+    } else if (ev.kind === 'output') {
+      if (ev.finish) {
+        stop(ev.finish.reason, ev.finish.message);
+        ended = true;
+      } else send(true);
+    } else break;
+    if (performance.now() - t0 > VIEWER_CHUNK_MS) break;
   }
   const seconds = (performance.now() - t0) / 1000;
+  const taken = e.step - from;
   if (taken > 0 && seconds > 0) rate = 0.7 * rate + 0.3 * (taken / seconds);
-  if (step >= r.steps) {
-    stop('end', `reached the end time t=${(step * r.dt).toPrecision(6)} (${step} steps)`);
-    return false;
-  }
-  return true;
+  return !ended;
 }
 
 function loop() {
-  if (!running || !sim) return;
+  if (!running || !engine) return;
   try {
     if (chunk()) send(false);
   } catch (e) {
@@ -131,7 +124,7 @@ function load(text: string, files: Record<string, MeshFileContents>) {
   setUp();
   const stats = meshStatistics(next.mesh);
   const rest = restState(next);
-  const state = sim!.stepper.state.slice();
+  const state = engine!.state.slice();
   const positions = next.mesh.positions.slice();
   const triangles = next.mesh.triangles.slice();
   post({
@@ -154,14 +147,13 @@ function restState(r: ResolvedScenario): (number | null)[] {
 }
 
 function setUp() {
-  sim = new SurfaceSimulation(resolved!);
-  step = 0;
+  engine = new RunEngine(resolved!);
   rate = 0;
   stopped = false;
   waitingForAck = false;
   area0 = meshArea(resolved!.mesh);
-  lastTriangles = sim.stepper.surface.triangles;
-  lastPositions = sim.stepper.surface.positions;
+  lastTriangles = engine.surface.triangles;
+  lastPositions = engine.surface.positions;
   growthFactor = 1;
 }
 
@@ -173,9 +165,9 @@ self.onmessage = (event: MessageEvent<ToSimulation>) => {
         load(m.text, m.files);
         break;
       case 'run':
-        if (!sim || running) break;
+        if (!engine || running) break;
         if (stopped) {
-          post({ type: 'error', message: 'the run has stopped (end time, blow-up or fold): reset it, or change the scenario and set it up again' });
+          post({ type: 'error', message: 'the run has stopped (end time, steady state, blow-up or fold): reset it, or change the scenario and set it up again' });
           break;
         }
         running = true;
@@ -186,7 +178,7 @@ self.onmessage = (event: MessageEvent<ToSimulation>) => {
         send(false);
         break;
       case 'step':
-        if (!sim || running || stopped) break;
+        if (!engine || running || stopped) break;
         if (chunk(m.steps)) send(false);
         break;
       case 'reset':
@@ -201,9 +193,9 @@ self.onmessage = (event: MessageEvent<ToSimulation>) => {
         if (pendingFrame && !running) send(false);
         break;
       case 'brush': {
-        if (!sim) break;
+        if (!engine) break;
         const nS = resolved!.species.length;
-        const state = sim.stepper.state;
+        const state = engine.state;
         for (let k = 0; k < m.vertices.length; k++) {
           const i = m.vertices[k], w = m.weights[k];
           for (let s = 0; s < nS; s++) {

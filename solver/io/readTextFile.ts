@@ -1,5 +1,5 @@
 import { readFileSync } from 'node:fs';
-import { UsageError } from './UsageError.ts';
+import { UsageError } from '../UsageError.ts';
 
 /** A text file's contents; a missing file or a directory is a usage error that says what was expected (`what`). */
 export function readTextFile(file: string, what: string): string {

@@ -1,0 +1,91 @@
+import type { RunEngine } from './RunEngine.ts';
+import type { RunAnalysis } from './RunRecord.ts';
+import type { Mesh } from '../mesh/Mesh.ts';
+import { meshArea } from '../mesh/triangleAreas.ts';
+import { forgetMeshTopology, meshTopology } from '../mesh/meshTopology.ts';
+import { laplaceBeltramiEigenpairs, type Eigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
+import { stabilityReport, scenarioBand, modesToCoverBand } from '../analysis/stabilityReport.ts';
+import { measurePattern } from '../analysis/measurePattern.ts';
+import { patchEvents } from '../analysis/patchEvents.ts';
+import type { VertexNeighbours } from '../analysis/thresholdComponents.ts';
+import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
+import { MAX_TRACKED_MODES } from '../defaults.ts';
+
+/** The vertex adjacency the pattern measures walk, kept apart from the rest of the topology. */
+function adjacency(mesh: Mesh): VertexNeighbours {
+  const topo = meshTopology(mesh);
+  return { vertexNeighbourOffsets: topo.vertexNeighbourOffsets, vertexNeighbours: topo.vertexNeighbours };
+}
+
+/**
+ * The pattern measures of a run at its output times, written into the run's
+ * `analysis` record: patches of the measured species (count, areas,
+ * centroids), the dominant surface-mode cluster, the split / merge / insertion
+ * / loss events between outputs, and the linear-stability prediction on the
+ * surface (followed as a growing surface changes: its eigenpairs are
+ * recomputed at every output, a pure function of the surface, so resumed runs
+ * agree).
+ */
+export class PatternTracker {
+  private eig: Eigenpairs | undefined;
+  private neighbours: VertexNeighbours;
+  private previousLabels: Int32Array | undefined;
+  private readonly band: [number, number] | null;
+  private readonly growing: boolean;
+  private readonly measured: number;
+
+  /** `resumed`: the engine starts from a saved state, whose pattern the next events are measured against. */
+  constructor(private readonly engine: RunEngine, private readonly analysis: RunAnalysis, resumed: boolean) {
+    const r = engine.scenario;
+    this.growing = r.growth !== undefined;
+    this.measured = r.species.indexOf(r.analysis.species);
+    this.band = this.growing && r.analysis.modes > 0 ? scenarioBand(r) : null;
+    if (r.analysis.modes > 0 && !this.growing) this.updateEigenpairs(engine.step);
+    this.neighbours = adjacency(engine.surface);
+    if (!this.growing) forgetMeshTopology(r.mesh); // the stepper holds all it needs; free edges and the CSR pattern
+    this.previousLabels = resumed ? this.measure(engine.state).labels : undefined;
+  }
+
+  /** The surface was refined: the adjacency changes, events restart, and the eigenpairs follow. */
+  refined(step: number): void {
+    this.neighbours = adjacency(this.engine.surface);
+    this.previousLabels = undefined;
+    if (this.engine.scenario.analysis.modes > 0) this.updateEigenpairs(step);
+  }
+
+  /** Measure the state at an output step into the record; the patch count and dominant eigenvalue, for the metrics. */
+  record(atStep: number, state: Float64Array): { patches: number; dominantEigenvalue?: number } {
+    const r = this.engine.scenario, a = this.analysis;
+    if (this.growing && r.analysis.modes > 0) this.updateEigenpairs(atStep);
+    const pattern = this.measure(state);
+    const count = pattern.patches.length;
+    if (a.frames.length && a.frames[a.frames.length - 1].patches.length !== count) a.lastCountChange = atStep * r.dt;
+    a.frames.push({
+      time: atStep * r.dt, step: atStep, threshold: pattern.threshold,
+      patches: pattern.patches.map((p) => ({ area: p.area, centroid: p.centroid })),
+      dominantEigenvalue: pattern.dominant?.eigenvalue, dominantFraction: pattern.dominant?.fraction,
+    });
+    if (this.previousLabels) for (const e of patchEvents(this.previousLabels, pattern.labels)) a.events.push({ time: atStep * r.dt, ...e });
+    this.previousLabels = pattern.labels;
+    return { patches: count, dominantEigenvalue: pattern.dominant?.eigenvalue };
+  }
+
+  private measure(state: Float64Array) {
+    const r = this.engine.scenario;
+    return measurePattern(this.engine.surface, speciesField(state, r.species.length, this.measured), this.engine.mass, this.neighbours, r.analysis.threshold, this.eig);
+  }
+
+  /** Eigenpairs of the surface as it is now, enough to reach the unstable band, and the prediction they give. */
+  private updateEigenpairs(atStep: number): void {
+    const r = this.engine.scenario, sim = this.engine.sim;
+    const surface = sim.stepper.surface;
+    const area = meshArea(surface);
+    const wanted = Math.max(r.analysis.modes, modesToCoverBand(area, this.band) ?? 0);
+    this.eig = laplaceBeltramiEigenpairs(surface, { count: Math.min(wanted, MAX_TRACKED_MODES, sim.vertexCount - 1), mass: 'lumped' });
+    this.analysis.modesUpTo = this.eig.values[this.eig.values.length - 1];
+    const rep = stabilityReport({ ...r, mesh: surface, system: sim.system }, { eigenpairs: this.eig });
+    const prediction = { state: rep.state, band: rep.turing?.band ?? null, fastest: rep.turing?.fastest ?? null, predicted: rep.predicted, notes: rep.notes };
+    if (atStep === 0) this.analysis.prediction = prediction;
+    if (this.growing) (this.analysis.predictions ??= []).push({ time: atStep * r.dt, area, vertices: sim.vertexCount, predicted: rep.predicted });
+  }
+}

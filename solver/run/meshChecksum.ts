@@ -1,0 +1,10 @@
+import { createHash } from 'node:crypto';
+import type { Mesh } from '../mesh/Mesh.ts';
+
+/** sha256 of a mesh's positions and triangles, as stored (for records and resume checks). Node only. */
+export function meshChecksum(mesh: Mesh): string {
+  const h = createHash('sha256');
+  h.update(new Uint8Array(mesh.positions.buffer, mesh.positions.byteOffset, mesh.positions.byteLength));
+  h.update(new Uint8Array(mesh.triangles.buffer, mesh.triangles.byteOffset, mesh.triangles.byteLength));
+  return `sha256:${h.digest('hex')}`;
+}

@@ -1,0 +1,192 @@
+import { join } from 'node:path';
+import type { ResolvedScenario } from '../scenario/ResolvedScenario.ts';
+import { writeFileAtomic } from '../io/meshFiles.ts';
+import { RUN_FILES, frameName, encodeFrame, stateMetrics, metricsHeader, metricsRow, encodeState, type SavedState } from './runFiles.ts';
+import type { RunRecord, StopReason } from './RunRecord.ts';
+import { RunEngine, type EngineEvent } from './RunEngine.ts';
+import { PatternTracker } from './PatternTracker.ts';
+import { makeProgress, type ProgressOption } from './progress.ts';
+import { meshArea } from '../mesh/triangleAreas.ts';
+import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
+import { encodeSnapshot } from '../io/encodeSnapshot.ts';
+import { colorizeField } from '../io/colormap.ts';
+import { VERSION } from '../version.ts';
+import { RUN_CHUNK_MS } from '../defaults.ts';
+
+export interface RunOptions {
+  /** run directory to write (new run) */
+  out?: string;
+  /** replace an existing, non-empty run directory */
+  force?: boolean;
+  /** 'bar' on a terminal, 'lines' otherwise; 'none' for silence */
+  progress?: ProgressOption;
+  /** stop as if interrupted once this many steps have been taken in this call (tests, scripted pauses) */
+  interruptAfterSteps?: number;
+  /** asked between chunks of steps: true stops the run as if interrupted (state saved, resumable) */
+  shouldStop?: () => boolean;
+  /** the command line, for the record */
+  command?: string[];
+  /** where progress and messages go (default: stderr) */
+  log?: (line: string) => void;
+}
+
+export interface RunOutcome {
+  dir: string;
+  reason: StopReason;
+  time: number;
+  step: number;
+  message: string;
+}
+
+/**
+ * Step a resolved scenario with the run engine and write its run directory:
+ * at every output a metrics row, the pattern measures, a frame (and the
+ * scenario's extra formats) and the saved state; at the end final.ply, the
+ * record with its stop reason and throughput. Ctrl-C (SIGINT or SIGTERM)
+ * stops after the current chunk with the state saved; a second one quits at
+ * once (the last saved state stays valid). `saved` resumes an interrupted run;
+ * `metricRows` are the metrics rows it already wrote.
+ */
+export async function writeRun(out: string, r: ResolvedScenario, record: RunRecord, saved: SavedState | undefined, metricRows: string[], options: RunOptions, t0: number): Promise<RunOutcome> {
+  const log = options.log ?? ((line: string) => process.stderr.write(line + '\n'));
+  const nS = r.species.length;
+  const { dt, steps: lastStep } = r;
+  const growing = r.growth !== undefined;
+  const engine = new RunEngine(r, saved);
+  if (r.growth) record.growth ??= { description: r.growth.description, tolerance: r.growth.tolerance, updates: 0, refinements: [] };
+  const updatesBefore = record.growth?.updates ?? 0;
+  const area0 = meshArea(r.mesh);
+  const tracker = new PatternTracker(engine, record.analysis, saved !== undefined);
+  engine.onRefined = ({ step, from, to }) => {
+    tracker.refined(step);
+    record.growth!.refinements.push({ time: step * dt, step, from, to });
+    log(`  refined at t=${(step * dt).toPrecision(6)}: ${from} → ${to} vertices`);
+  };
+  let nextFrame = saved?.nextFrame ?? 0;
+  const session: RunRecord['sessions'][number] = { started: new Date().toISOString(), fromStep: engine.step, setupSeconds: (performance.now() - t0) / 1000 };
+  record.sessions.push(session);
+
+  let outputSeconds = 0, steppingSeconds = 0;
+  const writeRecord = () => {
+    record.updated = new Date().toISOString();
+    writeFileAtomic(join(out, RUN_FILES.record), JSON.stringify(record, null, 2) + '\n', true);
+  };
+  const saveState = (state: Float64Array, atStep: number) => {
+    writeFileAtomic(join(out, RUN_FILES.state), encodeState({ step: atStep, time: atStep * dt, nextFrame, species: [...r.species], vertexCount: engine.vertexCount, meshChecksum: record.mesh.checksum, dt, state, ...engine.savedParts() }), true);
+  };
+  const comments = (atStep: number) => [`placode ${VERSION} run ${r.name}`, `time ${atStep * dt} step ${atStep}`];
+  const style = { colour: r.output.colour, colormap: r.output.colormap, range: r.output.range };
+  /** metrics row, pattern measures, frame and saved state for the state at `atStep` */
+  const emit = (state: Float64Array, atStep: number, frame: boolean) => {
+    const tw = performance.now();
+    const lastRow = metricRows[metricRows.length - 1];
+    if (lastRow === undefined || Number(lastRow.split(',')[1]) !== atStep) {
+      const pattern = tracker.record(atStep, state);
+      const area = meshArea(engine.surface);
+      metricRows.push(metricsRow(atStep * dt, atStep, stateMetrics(state, nS, engine.mass), [pattern.patches, pattern.dominantEigenvalue, ...(growing ? [area, Math.sqrt(area / area0), engine.vertexCount] : [])]));
+    }
+    writeFileAtomic(join(out, RUN_FILES.metrics), [metricsHeader(r.species, growing), ...metricRows].join('\n') + '\n', true);
+    if (frame && r.output.frames) {
+      const name = frameName(nextFrame);
+      writeFileAtomic(join(out, RUN_FILES.frames, name), encodeFrame(engine.surface, r.species, state, style, comments(atStep)), true);
+      record.frames.push({ file: `${RUN_FILES.frames}/${name}`, time: atStep * dt, step: atStep });
+    }
+    if (frame) nextFrame++;
+    saveState(state, atStep);
+    outputSeconds += (performance.now() - tw) / 1000;
+  };
+  /** the scenario's extra formats (glb, obj, csv) beside a frame or the final PLY */
+  const writeFormats = async (atStep: number, name: string) => {
+    if (!r.output.formats.length || (name !== 'final' && !r.output.frames)) return;
+    const tw = performance.now();
+    const fields = Object.fromEntries(r.species.map((s, i) => [s, speciesField(engine.state, nS, i)]));
+    const colors = colorizeField(fields[r.output.colour], r.output.colormap, r.output.range === 'frame' ? undefined : r.output.range);
+    for (const format of r.output.formats) {
+      const bytes = await encodeSnapshot(format, engine.surface, fields, colors, comments(atStep).join('; '));
+      writeFileAtomic(name === 'final' ? join(out, `final.${format}`) : join(out, RUN_FILES.frames, `${name}.${format}`), bytes, true);
+    }
+    outputSeconds += (performance.now() - tw) / 1000;
+  };
+  const finish = (reason: StopReason, atStep: number, message: string): RunOutcome => {
+    const tw = performance.now();
+    if (reason !== 'interrupted') writeFileAtomic(join(out, RUN_FILES.final), encodeFrame(engine.surface, r.species, engine.state, style, comments(atStep)), true);
+    outputSeconds += (performance.now() - tw) / 1000;
+    record.status = reason;
+    record.stop = { reason, time: atStep * dt, step: atStep, message };
+    if (record.growth) record.growth.updates = updatesBefore + engine.moves;
+    session.toStep = atStep;
+    session.steppingSeconds = steppingSeconds;
+    session.outputSeconds = outputSeconds;
+    const allSteps = record.sessions.reduce((a, s) => a + ((s.toStep ?? s.fromStep) - s.fromStep), 0);
+    const allSeconds = record.sessions.reduce((a, s) => a + (s.steppingSeconds ?? 0), 0);
+    const stepper = engine.sim.stepper;
+    record.performance = {
+      steps: allSteps,
+      steppingSeconds: allSeconds,
+      stepsPerSecond: allSteps / Math.max(allSeconds, 1e-9),
+      vertexStepsPerSecond: (allSteps * engine.vertexCount) / Math.max(allSeconds, 1e-9),
+      solverIterationsPerStep: r.scheme === 'imex' && r.solver === 'cg' ? stepper.totalIterations / Math.max(1, stepper.stepsTaken) : undefined,
+      stepperBytesPerVertex: stepper.bytes() / engine.vertexCount,
+    };
+    writeRecord();
+    progress.stop();
+    log(message);
+    return { dir: out, reason, time: atStep * dt, step: atStep, message };
+  };
+
+  let interrupted = false;
+  const onSignal = () => {
+    if (interrupted) process.exit(130);
+    interrupted = true;
+  };
+  process.on('SIGINT', onSignal);
+  process.on('SIGTERM', onSignal);
+  for (const w of r.warnings) log(`warning: ${w}`);
+  for (const note of r.meshNotes) log(`mesh: ${note}`);
+  log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${engine.vertexCount} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''} → ${out}`);
+  const progress = makeProgress(options.progress, log, engine.time, lastStep * dt);
+  try {
+    if (!saved) {
+      emit(engine.state, 0, true);
+      await writeFormats(0, frameName(0).replace('.ply', ''));
+    }
+    writeRecord();
+    const startStep = engine.step;
+    const started = performance.now();
+    while (!engine.finished) {
+      const chunkStart = performance.now();
+      const limit = options.interruptAfterSteps === undefined ? undefined : options.interruptAfterSteps - (engine.step - startStep);
+      const ev: EngineEvent = engine.advance({ deadline: chunkStart + RUN_CHUNK_MS, maxSteps: limit });
+      steppingSeconds += (performance.now() - chunkStart) / 1000;
+      if (ev.kind === 'failed') {
+        emit(engine.state, ev.step, false);
+        const where = ev.reason === 'blow-up' ? `The last good state (t=${(ev.step * dt).toPrecision(6)}) is in ${RUN_FILES.final} and ${RUN_FILES.state}.` : `The last state before it is in ${RUN_FILES.final} and ${RUN_FILES.state}.`;
+        return finish(ev.reason, ev.step, `${ev.message}. ${where}${ev.advice ? ` ${ev.advice}` : ''}`);
+      }
+      if (options.shouldStop?.()) interrupted = true;
+      if (options.interruptAfterSteps !== undefined && engine.step - startStep >= options.interruptAfterSteps) interrupted = true;
+      progress.update(engine.time, (engine.step - startStep) / Math.max(1e-9, (performance.now() - started) / 1000));
+      await new Promise((res) => setImmediate(res));
+      if (ev.kind === 'output') {
+        emit(engine.state, ev.step, true);
+        await writeFormats(ev.step, frameName(nextFrame - 1).replace('.ply', ''));
+        if (ev.finish) {
+          if (ev.finish.reason === 'steady-state') record.analysis.timeToSteadyState = ev.step * dt;
+          await writeFormats(ev.step, 'final');
+          return finish(ev.finish.reason, ev.step, `${ev.finish.message}. Outputs in ${out}`);
+        }
+      }
+      if (interrupted) {
+        if (ev.kind !== 'output') saveState(engine.state, engine.step);
+        return finish('interrupted', engine.step, `interrupted at t=${engine.time.toPrecision(6)} (step ${engine.step} of ${lastStep}); continue with: placode run --resume ${out}`);
+      }
+    }
+    // resumed at the end (an interruption landed on the last step): the final state is the saved one
+    await writeFormats(engine.step, 'final');
+    return finish('end', engine.step, `finished at t=${engine.time.toPrecision(6)} after ${engine.step} steps. Outputs in ${out}`);
+  } finally {
+    process.off('SIGINT', onSignal);
+    process.off('SIGTERM', onSignal);
+    progress.stop();
+  }
+}
