@@ -11,9 +11,10 @@ import { loadMeshFile } from '../io/meshFiles.ts';
 import { speciesFromProperties, RUN_FILES } from '../run/runFiles.ts';
 import { readRunRecord } from '../run/runDirectory.ts';
 import { thresholdComponents } from '../analysis/thresholdComponents.ts';
+import { packageFile } from '../packageRoot.ts';
 
 /** The example scenario the demo runs. */
-export const DEMO_SCENARIO = new URL('../../meshes/examples/limb-paddle-growing.yaml', import.meta.url).pathname;
+export const DEMO_SCENARIO = packageFile('meshes/examples/limb-paddle-growing.yaml');
 
 /**
  * The built-in demonstration: an imagined organism's limb-bud paddle, its mesh

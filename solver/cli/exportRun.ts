@@ -4,8 +4,10 @@ import { writeFileAtomic } from '../io/meshFiles.ts';
 import { colorizeField } from '../io/colormap.ts';
 import { writeAnimatedGlb } from '../io/writeGlb.ts';
 import { encodeSnapshot, type SnapshotFormat } from '../io/encodeSnapshot.ts';
-import { runFrames, loadSnapshot, speciesRange, colormapOption, fixedRangeOption } from '../run/runFrames.ts';
+import { runFrames, loadSnapshot, speciesRange } from '../run/runFrames.ts';
+import { colormapOption, fixedRangeOption } from '../io/paintingOptions.ts';
 import { UsageError } from '../UsageError.ts';
+import { ANIMATION_SECONDS, DEFAULT_COLORMAP } from '../defaults.ts';
 
 export type ExportFormat = SnapshotFormat;
 
@@ -47,7 +49,7 @@ export async function exportRun(input: string, o: ExportOptions): Promise<string
     if (o.frame >= frameFiles.length) throw new UsageError(`--frame ${o.frame}: the run has frames 0–${frameFiles.length - 1}`);
     chosen = [frameFiles[o.frame]];
   } else chosen = [files[files.length - 1]];
-  const colormap = colormapOption(o.colormap ?? 'viridis');
+  const colormap = colormapOption(o.colormap ?? DEFAULT_COLORMAP);
   const snapshots = chosen.map(loadSnapshot);
   const speciesNames = Object.keys(snapshots[0].fields);
   const species = o.species ?? speciesNames[speciesNames.length - 1];
@@ -69,7 +71,7 @@ export async function exportRun(input: string, o: ExportOptions): Promise<string
     if (same.length < all.length) throw new UsageError(`the surface was refined during the run (frames have ${[...new Set(all.map((s) => s.mesh.positions.length / 3))].join(', ')} vertices): one animation needs one mesh; export the frames with --all instead`);
     const times = listed.frames.map((f) => f.time ?? 0);
     const span = times[times.length - 1] - times[0] || 1;
-    const duration = o.duration ?? 10;
+    const duration = o.duration ?? ANIMATION_SECONDS;
     const bytes = await writeAnimatedGlb(
       all.map((s) => ({ positions: s.mesh.positions, colors: colorizeField(s.fields[species], colormap, range) })),
       all[0].mesh.triangles,

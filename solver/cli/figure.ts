@@ -1,7 +1,7 @@
 import { writeFileAtomic } from '../io/meshFiles.ts';
-import { runFrames, snapshotField, speciesRange, colormapOption, fixedRangeOption } from '../run/runFrames.ts';
+import { runFrames, snapshotField, speciesRange } from '../run/runFrames.ts';
+import { colormapOption, fixedRangeOption, viewOption } from '../io/paintingOptions.ts';
 import { surfaceFigurePng, surfaceFigureSvg, type FigurePanel } from '../io/surfaceFigure.ts';
-import { VIEW_PRESETS } from '../io/surfaceView.ts';
 import { UsageError } from '../UsageError.ts';
 
 export interface FigureOptions {
@@ -48,12 +48,7 @@ export function runFigure(input: string, o: FigureOptions): string {
     panels.push({ mesh: field.mesh, values: field.values, label: o.sheet ? f.label : undefined });
   }
   const colormap = colormapOption(o.colormap);
-  let view = VIEW_PRESETS[o.view];
-  if (!view) {
-    const m = /^(-?[0-9.]+),(-?[0-9.]+)$/.exec(o.view);
-    if (!m) throw new UsageError(`--view "${o.view}": a preset (${Object.keys(VIEW_PRESETS).join(', ')}) or azimuth,elevation in degrees`);
-    view = { azimuth: Number(m[1]), elevation: Number(m[2]) };
-  }
+  const view = viewOption(o.view);
   let range: [number, number] | undefined;
   if (o.range === 'run') {
     if (!isRun) throw new UsageError('--range run takes the range over every frame of a run directory');

@@ -1,10 +1,10 @@
 import { existsSync } from 'node:fs';
 import { SHAPES, buildShape } from '../../meshes/shapes/index.ts';
 import type { Mesh } from '../mesh/Mesh.ts';
-import { loadMeshFile } from '../io/meshFiles.ts';
 import { repairMesh as repairMeshPure, type MeshRepairs } from '../mesh/repairMesh.ts';
 import { validateMesh } from '../mesh/validateMesh.ts';
 import { UsageError } from '../UsageError.ts';
+import { parseCount, parseParams } from './options.ts';
 
 export interface MeshSourceOptions {
   param?: string[];
@@ -24,28 +24,12 @@ export interface ResolvedMesh {
   notes: string[];
 }
 
-/** `key=value` pairs of shape parameters. */
-export function parseParams(pairs: string[] = []): Record<string, number> {
-  const out: Record<string, number> = {};
-  for (const pair of pairs) {
-    const m = /^([A-Za-z_][A-Za-z0-9_]*)=(.+)$/.exec(pair);
-    if (!m) throw new UsageError(`shape parameter "${pair}" should read name=value, e.g. -p radius=2`);
-    const v = Number(m[2]);
-    if (!Number.isFinite(v)) throw new UsageError(`shape parameter ${m[1]} must be a number, got "${m[2]}"`);
-    out[m[1]] = v;
-  }
-  return out;
-}
-
-export function parseCount(text: string | undefined, what: string, min = 0): number | undefined {
-  if (text === undefined) return undefined;
-  const v = Number(text);
-  if (!Number.isInteger(v) || v < min) throw new UsageError(`${what} must be a whole number ≥ ${min}, got "${text}"`);
-  return v;
-}
-
-/** A built-in shape name or a mesh file path, with the requested repairs and refinements. */
-export function resolveMesh(spec: string, o: MeshSourceOptions): ResolvedMesh {
+/**
+ * A built-in shape name or a mesh file path, with the requested repairs and
+ * refinements. The file readers (and three.js behind them) load only when a
+ * file is given.
+ */
+export async function resolveMesh(spec: string, o: MeshSourceOptions): Promise<ResolvedMesh> {
   let mesh: Mesh;
   let source: ResolvedMesh['source'];
   let vertexData: Record<string, Float64Array> = {};
@@ -58,6 +42,7 @@ export function resolveMesh(spec: string, o: MeshSourceOptions): ResolvedMesh {
   } else if (existsSync(spec)) {
     if (o.param?.length) throw new UsageError(`-p/--param sets shape parameters, but "${spec}" is a file`);
     if (o.vertices !== undefined) throw new UsageError(`--vertices applies to built-in shapes, but "${spec}" is a file (use --refine to refine it)`);
+    const { loadMeshFile } = await import('../io/meshFiles.ts');
     const imported = loadMeshFile(spec);
     mesh = imported.mesh;
     vertexData = imported.vertexData;

@@ -5,6 +5,7 @@ import { parameterMap, parameterMapCsv, type MapAxis } from '../analysis/paramet
 import { parameterMapSvg } from '../io/parameterMapSvg.ts';
 import { saveModeFile } from './saveModeFile.ts';
 import { UsageError } from '../UsageError.ts';
+import { formatNumber } from './options.ts';
 
 export interface StabilityOptions {
   json?: boolean;
@@ -26,7 +27,7 @@ export function parseMapAxis(text: string): MapAxis {
   return { name: m[1], from, to, steps };
 }
 
-const fmt = (x: number) => (x === 0 ? '0' : Math.abs(x) >= 1e4 || Math.abs(x) < 1e-3 ? x.toExponential(4) : x.toPrecision(5));
+const fmt = (x: number) => formatNumber(x, 5);
 
 /** `placode stability`: the linear stability of a scenario and what it predicts on its surface. */
 export function runStability(file: string, o: StabilityOptions, out: (s: string) => void): void {

@@ -1,10 +1,8 @@
 import { existsSync, readdirSync, statSync } from 'node:fs';
-import { join, dirname } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { join } from 'node:path';
+import { PACKAGE_ROOT } from '../packageRoot.ts';
 
-/** Project root (two levels above solver/cli). */
-export const PROJECT_ROOT = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
-export const VIEWER_DIR = join(PROJECT_ROOT, 'viewer');
+export const VIEWER_DIR = join(PACKAGE_ROOT, 'viewer');
 export const VIEWER_DIST = join(VIEWER_DIR, 'dist');
 
 /** Newest modification time of the files under the viewer's sources (viewer/, solver/, meshes/). */
@@ -19,7 +17,7 @@ function newestSource(): number {
       else if (/\.(ts|html|css|yaml)$/.test(name)) newest = Math.max(newest, s.mtimeMs);
     }
   };
-  for (const d of ['viewer', 'solver', 'meshes']) walk(join(PROJECT_ROOT, d));
+  for (const d of ['viewer', 'solver', 'meshes']) walk(join(PACKAGE_ROOT, d));
   return newest;
 }
 

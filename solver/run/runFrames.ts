@@ -4,7 +4,6 @@ import { loadMeshFile } from '../io/meshFiles.ts';
 import { RUN_FILES, speciesFromProperties } from './runFiles.ts';
 import { readRunRecord } from './runDirectory.ts';
 import type { Mesh } from '../mesh/Mesh.ts';
-import { COLORMAP_NAMES, type ColormapName } from '../io/colormap.ts';
 import { UsageError } from '../UsageError.ts';
 
 export interface FrameRef {
@@ -50,17 +49,4 @@ export function speciesRange(files: readonly string[], species: string): [number
   let lo = Infinity, hi = -Infinity;
   for (const f of files) for (const x of loadSnapshot(f).fields[species] ?? []) { lo = Math.min(lo, x); hi = Math.max(hi, x); }
   return hi > lo ? [lo, hi] : undefined;
-}
-
-/** A colormap named on the command line, or a usage error listing them. */
-export function colormapOption(name: string): ColormapName {
-  if (!COLORMAP_NAMES.includes(name as ColormapName)) throw new UsageError(`unknown colormap "${name}"; choose one of ${COLORMAP_NAMES.join(', ')}`);
-  return name as ColormapName;
-}
-
-/** `min:max` from the command line (max > min), or a usage error saying what `--range` accepts. */
-export function fixedRangeOption(text: string, accepted: string): [number, number] {
-  const m = /^(-?[0-9.eE+-]+):(-?[0-9.eE+-]+)$/.exec(text);
-  if (!m || !(Number(m[2]) > Number(m[1]))) throw new UsageError(`--range "${text}" should be ${accepted}`);
-  return [Number(m[1]), Number(m[2])];
 }

@@ -24,6 +24,8 @@ export interface RunOptions {
   interruptAfterSteps?: number;
   /** asked between chunks of steps: true stops the run as if interrupted (state saved, resumable) */
   shouldStop?: () => boolean;
+  /** called once the run's record and first state are written, before the first step */
+  onStarted?: () => void;
   /** the command line, for the record */
   command?: string[];
   /** where progress and messages go (default: stderr) */
@@ -151,6 +153,7 @@ export async function writeRun(out: string, r: ResolvedScenario, record: RunReco
       await writeFormats(0, frameName(0).replace('.ply', ''));
     }
     writeRecord();
+    options.onStarted?.();
     const startStep = engine.step;
     const started = performance.now();
     while (!engine.finished) {

@@ -4,12 +4,12 @@ import { RUN_FILES } from '../run/runFiles.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { surfaceFigurePng, type FigurePanel } from '../io/surfaceFigure.ts';
 import { axisValues } from './expandSweep.ts';
-import { VIEW_PRESETS } from '../io/surfaceView.ts';
-import { snapshotField, colormapOption, fixedRangeOption } from '../run/runFrames.ts';
+import { snapshotField } from '../run/runFrames.ts';
+import { colormapOption, fixedRangeOption, viewOption } from '../io/paintingOptions.ts';
+import { DEFAULT_COLORMAP, DEFAULT_VIEW, SHEET_THUMBNAIL } from '../defaults.ts';
 import { readManifest } from './sweepPlan.ts';
 import { runStatus } from './sweepTask.ts';
 import { peekRunRecord } from '../run/runDirectory.ts';
-import { UsageError } from '../UsageError.ts';
 
 export interface CollectOptions {
   /** CSV file (default DIR/sweep.csv) */
@@ -107,16 +107,15 @@ export function collectSweep(dirArg: string, o: CollectOptions = {}): { csv: str
   if (o.sheet === false) return { csv, rows: rows.length, missing };
   const shown = panels.filter((p) => p.mesh);
   if (!shown.length) return { csv, rows: rows.length, missing };
-  const colormap = colormapOption(o.colormap ?? 'viridis');
+  const colormap = colormapOption(o.colormap ?? DEFAULT_COLORMAP);
   const range = o.range ? fixedRangeOption(o.range, 'min:max with max > min') : undefined;
-  const view = VIEW_PRESETS[o.view ?? 'iso'];
-  if (!view) throw new UsageError(`--view "${o.view}": one of ${Object.keys(VIEW_PRESETS).join(', ')}`);
+  const view = viewOption(o.view ?? DEFAULT_VIEW, true);
   // the grid: the last axis across (it varies fastest in the manifest), unless points were dropped or drawn at random
   const lastAxis = plan.varying[plan.varying.length - 1];
   const across = plan.design === 'grid' && !plan.duplicatesDropped && lastAxis ? axisValues(plan.vary[lastAxis]).length : Math.ceil(Math.sqrt(panels.length));
   const columnsOnSheet = Math.max(1, Math.min(across, panels.length));
   const rowsOnSheet = Math.ceil(panels.length / columnsOnSheet);
-  const thumb = o.thumbnail ?? 220;
+  const thumb = o.thumbnail ?? SHEET_THUMBNAIL;
   const width = Math.min(8000, columnsOnSheet * thumb + 150);
   const height = Math.min(8000, rowsOnSheet * (thumb + 24) + 60);
   const sheet = o.sheet ?? join(dir, 'sheet.png');

@@ -5,34 +5,16 @@ import { parseCheckedYaml, parseScenario, compileSchema, pathText, validateScena
 import type { Scenario } from '../scenario/Scenario.ts';
 import { SWEEP_FILE_SCHEMA, isSweepFileText, type SweepSpec } from './Sweep.ts';
 import { ScenarioError, type ScenarioProblem } from '../scenario/ScenarioError.ts';
-import { expandSweep, applySweepPoint, sweepAxisProblems, pointLabel, varyingPaths, type SweepPoint } from './expandSweep.ts';
+import { expandSweep, applySweepPoint, sweepAxisProblems, pointLabel, varyingPaths } from './expandSweep.ts';
 import { resolveScenario } from '../scenario/resolveScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { nodeScenarioEnvironment } from '../scenario/nodeScenarioEnvironment.ts';
 import { UsageError } from '../UsageError.ts';
 import { readTextFile } from '../io/readTextFile.ts';
 import { VERSION } from '../version.ts';
+import { SWEEP_FILES, type ManifestEntry } from './sweepFiles.ts';
 
-/** Files of a planned sweep directory. */
-export const SWEEP_FILES = {
-  manifest: 'manifest.jsonl',
-  plan: 'sweep.json',
-  scenarios: 'scenarios',
-  runs: 'runs',
-  logs: 'logs',
-  failure: 'failure.json',
-} as const;
-
-/** One line of a manifest: a run of the sweep. Paths are relative to the sweep directory. */
-export interface ManifestEntry {
-  index: number;
-  /** first 12 hex digits of the sha256 of the run's scenario: the same scenario always gets the same id */
-  id: string;
-  label: string;
-  values: SweepPoint;
-  scenario: string;
-  run: string;
-}
+export { SWEEP_FILES, type ManifestEntry } from './sweepFiles.ts';
 
 export interface SweepPlan {
   tool: { name: string; version: string };

@@ -5,14 +5,20 @@ import { readManifest } from './sweepPlan.ts';
 import { runStatus, markFailed, type TaskOutcome } from './sweepTask.ts';
 import { progressMode } from '../run/progress.ts';
 
+/** The worker thread's script: compiled (dist/) next to this file, or the sources through the TypeScript loader. */
+const WORKER = new URL(import.meta.url.endsWith('.js') ? './sweepWorker.js' : './sweepWorkerSource.mjs', import.meta.url);
+
 export interface PoolOptions {
   /** worker threads (default: every core) */
   workers?: number;
   retryFailed?: boolean;
   progress?: 'auto' | 'bar' | 'lines' | 'none';
   log?: (line: string) => void;
-  /** stop (saving every running run's state) once this many runs have finished in this call: tests */
-  stopAfter?: number;
+  /**
+   * asked whenever a run starts stepping or finishes: true stops the pool, every
+   * running run saving its state (tests, scripted pauses)
+   */
+  stopWhen?: (progress: { finished: number; running: number }) => boolean;
 }
 
 export interface PoolOutcome {
@@ -58,6 +64,8 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
   bar?.start(todo.length, 0, { failed: 0 });
   let finished = 0;
   let stopping = false;
+  /** runs that have started stepping and not finished */
+  const running = new Set<number>();
   const pool: Worker[] = [];
   const stopAll = () => {
     if (stopping) return;
@@ -84,7 +92,8 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
     else outcome.unfinished++;
     bar?.update(finished, { failed: outcome.failed.length });
     if (mode === 'lines') log(`  [${finished}/${todo.length}] run ${o.index} (${o.id}) ${o.state}${o.state === 'failed' ? `: ${o.message.split('\n')[0]}` : ''}`);
-    if (options.stopAfter !== undefined && finished >= options.stopAfter) stopAll();
+    running.delete(o.index);
+    if (options.stopWhen?.({ finished, running: running.size })) stopAll();
   };
   try {
     await new Promise<void>((resolveAll) => {
@@ -93,7 +102,7 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
       let crashes = 0;
       /** Start a worker thread; one that dies mid-run records that run as failed and is replaced. */
       const spawn = () => {
-        const w = new Worker(new URL('./sweepWorkerSource.mjs', import.meta.url), { workerData: { dir, retryFailed: options.retryFailed ?? false } });
+        const w = new Worker(WORKER, { workerData: { dir, retryFailed: options.retryFailed ?? false } });
         pool.push(w);
         alive++;
         let current: number | undefined;
@@ -109,6 +118,10 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
         };
         w.on('message', (m: { type: string; outcome?: TaskOutcome; index?: number; message?: string }) => {
           if (m.type === 'ready') feed();
+          else if (m.type === 'started') {
+            running.add(m.index!);
+            if (options.stopWhen?.({ finished, running: running.size })) stopAll();
+          }
           else if (m.type === 'done') { record(m.outcome!); feed(); }
           else if (m.type === 'error') { record({ index: m.index!, id: entries[m.index!].id, state: 'failed', message: m.message! }); feed(); }
         });

@@ -1,7 +1,7 @@
 import { appendFileSync, mkdirSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { packageFile } from '../packageRoot.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { readManifest } from './sweepPlan.ts';
 import { runStatus } from './sweepTask.ts';
@@ -92,7 +92,7 @@ export function writeSlurmArray(dirArg: string, o: SlurmOptions): { scripts: str
   if (!indices.length) throw new UsageError(`every run of ${dirArg} is finished; nothing to submit (--all writes the whole array, --retry-failed includes failed runs)`);
   const slurmDir = join(dir, 'slurm');
   mkdirSync(join(slurmDir, 'logs'), { recursive: true });
-  const launcher = o.launcher ?? `${quote(process.execPath)} ${quote(fileURLToPath(new URL('../cli/placode.mjs', import.meta.url)))}`;
+  const launcher = o.launcher ?? `${quote(process.execPath)} ${quote(packageFile('solver/cli/placode.mjs'))}`;
   const name = `placode-${plan.name}`.replace(/[^A-Za-z0-9_.-]/g, '_').slice(0, 64);
   const maxArraySize = o.maxArraySize ?? clusterMaxArraySize() ?? 1001;
   const chunks = arrayChunks(indices, maxArraySize);

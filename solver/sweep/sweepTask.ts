@@ -58,6 +58,8 @@ export interface TaskOptions {
   log?: (line: string) => void;
   /** asked between chunks of steps: true stops the run, saving its state */
   shouldStop?: () => boolean;
+  /** called once the run has started stepping (its record and first state written) */
+  onStarted?: () => void;
   /** the sweep's manifest when the caller has read it already (a pool worker reads it once) */
   manifest?: { dir: string; entries: ManifestEntry[] };
 }
@@ -102,8 +104,8 @@ export async function runSweepTask(dirArg: string, index: number, options: TaskO
   try {
     const resumable = (before.state === 'interrupted' || before.state === 'running') && existsSync(join(run, RUN_FILES.state));
     outcome = resumable
-      ? await resumeRun(run, { progress: 'none', log, shouldStop: options.shouldStop, command: ['sweep', 'task', dir, '--index', String(index)] })
-      : await runScenarioFile(join(dir, entry.scenario), { out: run, force: true, progress: 'none', log, shouldStop: options.shouldStop, command: ['sweep', 'task', dir, '--index', String(index)] });
+      ? await resumeRun(run, { progress: 'none', log, shouldStop: options.shouldStop, onStarted: options.onStarted, command: ['sweep', 'task', dir, '--index', String(index)] })
+      : await runScenarioFile(join(dir, entry.scenario), { out: run, force: true, progress: 'none', log, shouldStop: options.shouldStop, onStarted: options.onStarted, command: ['sweep', 'task', dir, '--index', String(index)] });
   } catch (e) {
     const message = (e as Error).message;
     log(`failed: ${message}`);

@@ -124,9 +124,14 @@ output: {every: 0.5}
     const bin = join(__dirname, '..', '..', 'solver', 'cli', 'placode.mjs');
     const child = spawn(process.execPath, [bin, 'run', longer, '--out', out, '--progress', 'lines'], { stdio: ['ignore', 'ignore', 'pipe'] });
     let err = '';
+    let signalled = false;
     child.stderr.on('data', (d) => {
       err += String(d);
-      if (/running /.test(err)) setTimeout(() => child.kill('SIGINT'), 500);
+      // the first progress line says stepping has begun: interrupt then, once
+      if (!signalled && /^ {2}t=/m.test(err)) {
+        signalled = true;
+        child.kill('SIGINT');
+      }
     });
     const code = await new Promise<number | null>((res) => child.on('exit', res));
     expect(code, err).toBe(130); // (if 0: the run finished before the signal; lengthen it)

@@ -54,11 +54,12 @@ describe('placode sweep run (local worker pool)', () => {
 
   it('an interrupted sweep resumes where it stopped, and ends with the same results as an uninterrupted one', async () => {
     write('base.yaml', BASE.replace('every: 20', 'every: 100'));
-    // the second point runs 30 times longer: it is mid-run when the first finishes and the pool is stopped
+    // the second point runs 30 times longer: the pool is stopped once the first has finished and the
+    // second has started stepping, so the second is mid-run when the stop reaches it
     const sweep = write('resume.yaml', 'scenario: base.yaml\nvary:\n  time.end: [100, 3000]\n');
     const out = temp.path('resume');
     const { entries } = planSweep(sweep, { out, log: () => {} });
-    const first = await runSweepLocal(out, { workers: 2, progress: 'none', log: () => {}, stopAfter: 1 });
+    const first = await runSweepLocal(out, { workers: 2, progress: 'none', log: () => {}, stopWhen: (p) => p.finished >= 1 && p.running >= 1 });
     expect(first).toMatchObject({ interrupted: true, done: 1, unfinished: 1 });
     expect(sweepStatus(out).runs.map((r) => r.state)).toEqual(['done', 'interrupted']);
     const saved = JSON.parse(readFileSync(join(out, entries[1].run, 'record.json'), 'utf8')).stop.step;

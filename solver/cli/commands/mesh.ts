@@ -1,0 +1,44 @@
+import type { RegisterCommand } from './CommandContext.ts';
+import type { MeshSourceOptions } from '../meshSource.ts';
+import { addMeshOptions, formatNumber as fmt } from '../options.ts';
+import { UsageError } from '../../UsageError.ts';
+
+export const registerMesh: RegisterCommand = (program, ctx) => {
+  addMeshOptions(
+    program
+      .command('mesh')
+      .argument('<shape|file>', 'built-in shape name or mesh file (.ply .obj .stl .off)')
+      .description('build or load a mesh, check it, print its statistics, optionally write it out'),
+  )
+    .option('-o, --out <file>', 'write the mesh (.ply .obj .stl .off by extension)')
+    .option('--ascii', 'write PLY as ASCII instead of binary')
+    .option('--force', 'overwrite an existing output file')
+    .option('--json', 'print the statistics as JSON')
+    .action(async (spec: string, o: MeshSourceOptions & { out?: string; ascii?: boolean; force?: boolean; json?: boolean }) => {
+      const { resolveMesh } = await import('../meshSource.ts');
+      const { meshStatistics } = await import('../../mesh/meshStatistics.ts');
+      const r = await resolveMesh(spec, o);
+      const stats = meshStatistics(r.mesh);
+      if (o.out) {
+        if (stats.errors.length > 0) throw new UsageError(`not writing ${o.out}: the mesh has errors:\n  - ${stats.errors.join('\n  - ')}`);
+        const { saveMeshFile } = await import('../../io/meshFiles.ts');
+        const { VERSION } = await import('../../version.ts');
+        saveMeshFile(o.out, r.mesh, { encoding: o.ascii ? 'ascii' : 'binary', force: o.force, properties: r.vertexData, comments: [`placode ${VERSION}`] });
+      }
+      if (o.json) {
+        process.stdout.write(JSON.stringify(stats, null, 2) + '\n');
+      } else {
+        const e = stats.edgeLength;
+        process.stdout.write(
+          `${spec}: ${stats.vertices} vertices, ${stats.triangles} triangles\n` +
+            `  area ${fmt(stats.area)}, genus ${stats.genus}, ${stats.boundaryLoops} boundary loop(s), ${stats.components} component(s), Euler characteristic ${stats.eulerCharacteristic}\n` +
+            `  edge length min ${fmt(e.min)} mean ${fmt(e.mean)} max ${fmt(e.max)}\n`,
+        );
+        for (const n of r.notes) process.stdout.write(`  note: ${n}\n`);
+        for (const w of stats.warnings) process.stdout.write(`  warning: ${w}\n`);
+        for (const w of stats.errors) process.stdout.write(`  error: ${w}\n`);
+        if (o.out) process.stdout.write(`  wrote ${o.out}\n`);
+      }
+      if (stats.errors.length > 0) ctx.setExitCode(1);
+    });
+};

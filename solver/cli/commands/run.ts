@@ -1,0 +1,29 @@
+import { Option } from 'commander';
+import type { RegisterCommand } from './CommandContext.ts';
+import { PROGRESS_CHOICES, type ProgressChoice } from '../options.ts';
+import { UsageError } from '../../UsageError.ts';
+
+export const registerRun: RegisterCommand = (program, ctx) => {
+  program
+    .command('run')
+    .argument('[scenario]', 'scenario file (.yaml, .yml or .json)')
+    .description('run a scenario headless and write its outputs into a run directory')
+    .option('-o, --out <dir>', 'run directory to write (record.json, frames/, final.ply, metrics.csv, state.bin)')
+    .option('--resume <dir>', 'continue an interrupted run from its saved state')
+    .option('--force', 'replace an existing run directory')
+    .option('--check', 'check the scenario and print the resolved plan without running')
+    .addOption(new Option('--progress <mode>', 'progress display').choices(PROGRESS_CHOICES).default('auto'))
+    .action(async (file: string | undefined, o: { out?: string; resume?: string; force?: boolean; check?: boolean; progress: ProgressChoice }) => {
+      if (o.resume && (file || o.out)) throw new UsageError('--resume DIR continues a run as it was set up: give no scenario or --out with it');
+      if (!o.resume && !file) throw new UsageError('give a scenario file (placode run scenario.yaml --out DIR) or --resume DIR');
+      const { runScenarioFile, resumeRun, checkScenario } = await import('../../run/runScenarioFile.ts');
+      if (o.check && !o.resume) {
+        process.stdout.write(JSON.stringify(checkScenario(file!), null, 2) + '\n');
+        return;
+      }
+      const outcome = o.resume
+        ? await resumeRun(o.resume, { progress: o.progress, command: ctx.argv })
+        : await runScenarioFile(file!, { out: o.out, force: o.force, progress: o.progress, command: ctx.argv });
+      ctx.setExitCode(outcome.reason === 'blow-up' || outcome.reason === 'degenerate' ? 3 : outcome.reason === 'interrupted' ? 130 : 0);
+    });
+};
