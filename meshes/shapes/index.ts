@@ -1,5 +1,6 @@
 import type { Mesh } from '../../solver/mesh/Mesh.ts';
 import type { ShapeDefinition } from './ShapeDefinition.ts';
+import { DEFAULT_SHAPE_VERTICES, MAX_SHAPE_VERTICES } from '../../solver/defaults.ts';
 import { sphere } from './sphere.ts';
 import { ellipsoid } from './ellipsoid.ts';
 import { torus } from './torus.ts';
@@ -16,10 +17,8 @@ export const SHAPES: Readonly<Record<string, ShapeDefinition>> = Object.fromEntr
   [sphere, ellipsoid, torus, capsule, dome, patch, limbBud, spiralShell].map((s) => [s.name, s]),
 );
 
-/** Vertex count a shape aims for when none is asked for. */
-export const DEFAULT_SHAPE_VERTICES = 10_000;
-/** Largest vertex target accepted (memory guard, ~0.5 GB of operators). */
-export const MAX_SHAPE_VERTICES = 5_000_000;
+/** Vertex count a shape aims for when none is asked for, and the largest target accepted (memory guard, ~0.5 GB of operators). */
+export { DEFAULT_SHAPE_VERTICES, MAX_SHAPE_VERTICES } from '../../solver/defaults.ts';
 
 export interface ShapeRequest {
   shape: string;
