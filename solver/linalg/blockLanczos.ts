@@ -1,5 +1,6 @@
 import { seededRandom } from './seededRandom.ts';
 import { symmetricEigen } from './symmetricEigen.ts';
+import { basisDots, basisSubtract, basisCombine, mulUpper } from './basisKernels.ts';
 
 /**
  * A linear operator that is self-adjoint in the inner product ⟨x, y⟩ = xᵀBy
@@ -37,9 +38,6 @@ export interface LanczosResult {
   restarts: number;
   operatorApplications: number;
 }
-
-/** Rows per chunk in the blocked basis loops: the block chunk stays in L1 cache. */
-const CHUNK = 512;
 
 /**
  * Largest `count` eigenpairs of a B-self-adjoint operator by block Lanczos with
@@ -81,64 +79,6 @@ export function blockLanczos(op: SelfAdjointOperator, count: number, options: La
   const toInterleaved = (x: Float64Array, out: Float64Array) => {
     for (let k = 0; k < n; k++) for (let c = 0; c < b; c++) out[k * b + c] = x[c * n + k];
   };
-  /** h[i·b + c] = V[i]ᵀ z_c for i < upto (z column-major); four basis vectors per sweep */
-  const dots = (upto: number, z: Float64Array, h: Float64Array, from = 0) => {
-    h.fill(0, 0, upto * b);
-    for (let k0 = 0; k0 < n; k0 += CHUNK) {
-      const k1 = Math.min(n, k0 + CHUNK);
-      let i = 0;
-      for (; i + 3 < upto; i += 4) {
-        const v0 = V[from + i], v1 = V[from + i + 1], v2 = V[from + i + 2], v3 = V[from + i + 3];
-        for (let c = 0; c < b; c++) {
-          const off = c * n;
-          let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-          for (let k = k0; k < k1; k++) {
-            const zk = z[off + k];
-            s0 += v0[k] * zk;
-            s1 += v1[k] * zk;
-            s2 += v2[k] * zk;
-            s3 += v3[k] * zk;
-          }
-          h[i * b + c] += s0;
-          h[(i + 1) * b + c] += s1;
-          h[(i + 2) * b + c] += s2;
-          h[(i + 3) * b + c] += s3;
-        }
-      }
-      for (; i < upto; i++) {
-        const v = V[from + i];
-        for (let c = 0; c < b; c++) {
-          const off = c * n;
-          let s0 = 0;
-          for (let k = k0; k < k1; k++) s0 += v[k] * z[off + k];
-          h[i * b + c] += s0;
-        }
-      }
-    }
-  };
-  /** y_c −= Σ_i V[i]·h[i·b + c] (y column-major); four basis vectors per sweep */
-  const subtract = (upto: number, h: Float64Array, y: Float64Array, from = 0) => {
-    for (let k0 = 0; k0 < n; k0 += CHUNK) {
-      const k1 = Math.min(n, k0 + CHUNK);
-      let i = 0;
-      for (; i + 3 < upto; i += 4) {
-        const v0 = V[from + i], v1 = V[from + i + 1], v2 = V[from + i + 2], v3 = V[from + i + 3];
-        for (let c = 0; c < b; c++) {
-          const h0 = h[i * b + c], h1 = h[(i + 1) * b + c], h2 = h[(i + 2) * b + c], h3 = h[(i + 3) * b + c];
-          const off = c * n;
-          for (let k = k0; k < k1; k++) y[off + k] -= h0 * v0[k] + h1 * v1[k] + h2 * v2[k] + h3 * v3[k];
-        }
-      }
-      for (; i < upto; i++) {
-        const v = V[from + i];
-        for (let c = 0; c < b; c++) {
-          const hc = h[i * b + c];
-          const off = c * n;
-          for (let k = k0; k < k1; k++) y[off + k] -= hc * v[k];
-        }
-      }
-    }
-  };
   /**
    * Orthogonalise block y against V[0..upto) twice (classical Gram–Schmidt),
    * adding the coefficients into `h` (if given). With `localFrom`, the first pass
@@ -152,9 +92,9 @@ export function blockLanczos(op: SelfAdjointOperator, count: number, options: La
       const from = pass === 0 ? localFrom : 0;
       op.applyInner(y, b, Z);
       toColumns(Z, Zc);
-      dots(upto - from, Zc, H2, from);
+      basisDots(V, from, upto - from, Zc, n, b, H2);
       toColumns(y, Yc);
-      subtract(upto - from, H2, Yc, from);
+      basisSubtract(V, from, upto - from, H2, Yc, n, b);
       toInterleaved(Yc, y);
       if (h) for (let q = 0; q < (upto - from) * b; q++) h[from * b + q] += H2[q];
     }
@@ -295,14 +235,14 @@ export function blockLanczos(op: SelfAdjointOperator, count: number, options: La
       }
       return {
         values: values.slice(0, count),
-        vectors: combine(V, ritz, msize, count, n),
+        vectors: basisCombine(V, ritz, msize, count, n),
         residuals: residual.slice(0, count),
         restarts,
         operatorApplications: applications,
       };
     }
     const keep = Math.min(msize - b, Math.max(count + b, Math.floor((msize + count) / 2)));
-    const kept = combine(V, ritz, msize, keep, n);
+    const kept = basisCombine(V, ritz, msize, keep, n);
     const pending = V.slice(msize, msize + b);
     V.length = 0;
     for (const v of kept) V.push(v);
@@ -313,42 +253,4 @@ export function blockLanczos(op: SelfAdjointOperator, count: number, options: La
     restartedAt = keep;
     restarts++;
   }
-}
-
-/** out = A·B for upper triangular b×b matrices (row-major). */
-function mulUpper(a: Float64Array, bm: Float64Array, b: number, out: Float64Array): void {
-  out.fill(0);
-  for (let i = 0; i < b; i++)
-    for (let j = i; j < b; j++) {
-      let s = 0;
-      for (let k = i; k <= j; k++) s += a[i * b + k] * bm[k * b + j];
-      out[i * b + j] = s;
-    }
-}
-
-/** Columns Σ_i V[i]·S[i, k] for k < count; four basis vectors per sweep. */
-function combine(V: Float64Array[], S: Float64Array, msize: number, count: number, n: number): Float64Array[] {
-  const out: Float64Array[] = [];
-  for (let k = 0; k < count; k++) out.push(new Float64Array(n));
-  for (let k0 = 0; k0 < n; k0 += CHUNK) {
-    const k1 = Math.min(n, k0 + CHUNK);
-    let i = 0;
-    for (; i + 3 < msize; i += 4) {
-      const v0 = V[i], v1 = V[i + 1], v2 = V[i + 2], v3 = V[i + 3];
-      for (let k = 0; k < count; k++) {
-        const s0 = S[i * msize + k], s1 = S[(i + 1) * msize + k], s2 = S[(i + 2) * msize + k], s3 = S[(i + 3) * msize + k];
-        const o = out[k];
-        for (let q = k0; q < k1; q++) o[q] += s0 * v0[q] + s1 * v1[q] + s2 * v2[q] + s3 * v3[q];
-      }
-    }
-    for (; i < msize; i++) {
-      const v = V[i];
-      for (let k = 0; k < count; k++) {
-        const s = S[i * msize + k];
-        const o = out[k];
-        for (let q = k0; q < k1; q++) o[q] += s * v[q];
-      }
-    }
-  }
-  return out;
 }
