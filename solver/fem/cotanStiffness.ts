@@ -1,7 +1,6 @@
 import type { Mesh } from '../mesh/Mesh.ts';
-import { meshTopology } from '../mesh/meshTopology.ts';
 import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
-import { vertexSparsityPattern } from './vertexSparsityPattern.ts';
+import { operatorAssembly } from './vertexSparsityPattern.ts';
 
 /**
  * P1 stiffness matrix of the Laplace–Beltrami operator (the cotangent formula),
@@ -19,15 +18,9 @@ import { vertexSparsityPattern } from './vertexSparsityPattern.ts';
  * its value; it stays symmetric with K·1 = 0, and positive semi-definite for D ≥ 0.
  */
 export function cotanStiffness(mesh: Mesh, out?: CsrMatrix, coefficient?: Float64Array): CsrMatrix {
-  const pattern = vertexSparsityPattern(mesh);
-  const topo = meshTopology(mesh);
-  const values = out?.values ?? new Float64Array(pattern.columns.length);
-  values.fill(0);
+  const { matrix, values, edgeSlots: es, diagonalSlots: ds, triangleEdges: te } = operatorAssembly(mesh, out);
   const p = mesh.positions;
   const tri = mesh.triangles;
-  const te = topo.triangleEdges;
-  const es = pattern.edgeSlots;
-  const ds = pattern.diagonalSlots;
   const nF = tri.length / 3;
   for (let t = 0; t < nF; t++) {
     const i0 = tri[3 * t], i1 = tri[3 * t + 1], i2 = tri[3 * t + 2];
@@ -55,7 +48,5 @@ export function cotanStiffness(mesh: Mesh, out?: CsrMatrix, coefficient?: Float6
     values[ds[i1]] += w2 + w0;
     values[ds[i2]] += w0 + w1;
   }
-  if (out) return out;
-  const n = pattern.size;
-  return { rows: n, cols: n, rowOffsets: pattern.rowOffsets, columns: pattern.columns, values };
+  return matrix;
 }

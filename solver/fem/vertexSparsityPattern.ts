@@ -1,5 +1,6 @@
 import type { Mesh } from '../mesh/Mesh.ts';
 import { meshTopology, type MeshTopology } from '../mesh/meshTopology.ts';
+import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
 
 /**
  * The nV×nV CSR pattern of every P1 operator on a mesh: row i holds i and its edge
@@ -55,4 +56,24 @@ export function vertexSparsityPattern(mesh: Mesh): VertexSparsityPattern {
   const pattern = { size: nV, rowOffsets, columns, edgeSlots, diagonalSlots };
   cache.set(topo, pattern);
   return pattern;
+}
+
+/** Where a P1 operator is assembled: the matrix on the shared pattern (`out`'s, zeroed, or a new one) and the slots triangles scatter into. */
+export interface OperatorAssembly {
+  matrix: CsrMatrix;
+  values: Float64Array;
+  edgeSlots: Uint32Array;
+  diagonalSlots: Uint32Array;
+  /** the three edges of each triangle (topology's triangleEdges) */
+  triangleEdges: Uint32Array;
+}
+
+/** Start assembling an operator on a mesh's shared pattern, into `out` (same connectivity) when given. */
+export function operatorAssembly(mesh: Mesh, out?: CsrMatrix): OperatorAssembly {
+  const pattern = vertexSparsityPattern(mesh);
+  const values = out?.values ?? new Float64Array(pattern.columns.length);
+  values.fill(0);
+  const n = pattern.size;
+  const matrix = out ?? { rows: n, cols: n, rowOffsets: pattern.rowOffsets, columns: pattern.columns, values };
+  return { matrix, values, edgeSlots: pattern.edgeSlots, diagonalSlots: pattern.diagonalSlots, triangleEdges: meshTopology(mesh).triangleEdges };
 }

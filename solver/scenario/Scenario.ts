@@ -144,14 +144,12 @@ export interface OutputSpec {
   formats?: ('ply' | 'glb' | 'obj' | 'csv')[];
 }
 
-const fieldValue = {
-  description: 'a number, a formula (text) or {vertexData: NAME}',
-  oneOf: [
-    { type: 'number' },
-    { type: 'string', minLength: 1 },
-    { type: 'object', properties: { vertexData: { type: 'string', minLength: 1 } }, required: ['vertexData'], additionalProperties: false },
-  ],
-};
+const formula = { type: 'string', minLength: 1 };
+const vertexData = { type: 'object', properties: { vertexData: { type: 'string', minLength: 1 } }, required: ['vertexData'], additionalProperties: false };
+/** a parameter, diffusion coefficient or initial value: constant, formula in x, y, z, or the mesh's per-vertex data */
+const fieldValue = { description: 'a number, a formula (text) or {vertexData: NAME}', oneOf: [{ type: 'number' }, formula, vertexData] };
+/** a growth speed or expansion rate: a formula in x, y, z, t, or the mesh's per-vertex data */
+const growthField = { description: 'a formula in x, y, z, t or {vertexData: NAME}', oneOf: [formula, vertexData] };
 
 const nameMap = (value: object) => ({ type: 'object', additionalProperties: value, propertyNames: { pattern: '^[A-Za-z][A-Za-z0-9_]*$' } });
 
@@ -257,14 +255,8 @@ export const SCENARIO_SCHEMA = {
         axes: { type: 'array', minItems: 3, maxItems: 3, items: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 } },
         capacity: { type: 'number', exclusiveMinimum: 1 },
         centre: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 },
-        expansion: {
-          description: 'a formula in x, y, z, t or {vertexData: NAME}',
-          oneOf: [{ type: 'string', minLength: 1 }, { type: 'object', additionalProperties: false, required: ['vertexData'], properties: { vertexData: { type: 'string', minLength: 1 } } }],
-        },
-        speed: {
-          description: 'a formula in x, y, z, t or {vertexData: NAME}',
-          oneOf: [{ type: 'string', minLength: 1 }, { type: 'object', additionalProperties: false, required: ['vertexData'], properties: { vertexData: { type: 'string', minLength: 1 } } }],
-        },
+        expansion: growthField,
+        speed: growthField,
         tolerance: { type: 'number', exclusiveMinimum: 0, maximum: 0.5 },
         refine: {
           type: 'object',
