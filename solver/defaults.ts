@@ -16,6 +16,11 @@ export const EIGEN_CLUSTER_TOLERANCE = 0.01;
 /** Eigenpairs `placode modes` computes. */
 export const DEFAULT_MODE_COUNT = 20;
 
+// ---- formulas
+/** The longest formula accepted, in characters, and the deepest nesting of operators, calls and parentheses. */
+export const FORMULA_MAX_LENGTH = 4000;
+export const FORMULA_MAX_NESTING = 64;
+
 // ---- time stepping
 /** Output interval when the scenario gives none: end / OUTPUTS_PER_RUN. */
 export const OUTPUTS_PER_RUN = 20;

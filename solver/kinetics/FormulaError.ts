@@ -9,7 +9,9 @@ export class FormulaError extends Error {
 
   constructor(formula: string, reason: string, column?: number) {
     const where = column !== undefined ? ` at column ${column}` : '';
-    super(`in "${formula}"${where}: ${reason}`);
+    // a long formula is quoted by its start only
+    const quoted = formula.length > 80 ? `${formula.slice(0, 60)}…" (${formula.length} characters` : `${formula}"`;
+    super(`in "${quoted}${formula.length > 80 ? ')' : ''}${where}: ${reason}`);
     this.name = 'FormulaError';
     this.formula = formula;
     this.reason = reason;

@@ -1,7 +1,8 @@
-import { derivative, SymbolNode, type MathNode } from 'mathjs';
+import type { MathNode } from 'mathjs';
 import { FormulaError } from './FormulaError.ts';
-import { parseFormula, FORMULA_CONSTANTS, FORMULA_FUNCTIONS, formulaSymbols } from './parseFormula.ts';
+import { parseFormula, FORMULA_CONSTANTS, FORMULA_FUNCTIONS, formulaSymbols, forEachFormulaNode } from './parseFormula.ts';
 import { formulaToCode } from './formulaToCode.ts';
+import { forwardDerivativeCode } from './jacobianCode.ts';
 
 /** Coordinates and time a rate or field formula may use. */
 export const COORDINATE_NAMES = ['x', 'y', 'z', 't'] as const;
@@ -48,7 +49,7 @@ export interface CompiledKinetics {
    * time-stepping kernels inline the rates instead).
    */
   evaluate(values: ArrayLike<number>, params: ArrayLike<number>, out: Float64Array, x?: number, y?: number, z?: number, t?: number): Float64Array;
-  /** ∂f_i/∂u_j at a point, row-major nS×nS (symbolic derivatives, compiled once) */
+  /** ∂f_i/∂u_j at a point, row-major nS×nS (forward-mode automatic differentiation, compiled once) */
   jacobian(values: ArrayLike<number>, params: ArrayLike<number>, out?: Float64Array, x?: number, y?: number, z?: number, t?: number): Float64Array;
 }
 
@@ -56,14 +57,15 @@ export const speciesPlaceholder = (i: number) => `s${i}`;
 export const parameterPlaceholder = (i: number) => `p${i}`;
 const COORDINATE_PLACEHOLDERS: Record<string, string> = { x: 'cx', y: 'cy', z: 'cz', t: 'ct' };
 
-/** Replace user names by placeholders in a parsed tree. */
+/** Replace user names by placeholders in a freshly parsed tree (in place; a call's function name stays). */
 function renameSymbols(node: MathNode, rename: ReadonlyMap<string, string>): MathNode {
-  return node.transform((n: MathNode, _path: string, parent: MathNode | null) => {
-    if (n.type !== 'SymbolNode') return n;
-    if (parent?.type === 'FunctionNode' && (parent as unknown as { fn: MathNode }).fn === n) return n;
-    const to = rename.get((n as unknown as { name: string }).name);
-    return to ? new SymbolNode(to) : n;
+  forEachFormulaNode(node, (n) => {
+    if (n.type !== 'SymbolNode') return;
+    const symbol = n as unknown as { name: string };
+    const to = rename.get(symbol.name);
+    if (to) symbol.name = to;
   });
+  return node;
 }
 
 /** Every local name the generic evaluators use, mapped from the placeholders. */
@@ -145,21 +147,19 @@ export function compileKinetics(species: readonly string[], reactions: Readonly<
   return kinetics;
 }
 
-/** Symbolic ∂f_i/∂u_j (mathjs `derivative`), compiled to one scalar function. */
+/**
+ * ∂f_i/∂u_j by forward-mode automatic differentiation of the rate trees
+ * (`forwardDerivativeCode`: cost linear in the formula), compiled to one scalar function.
+ */
 function compileJacobian(k: CompiledKinetics): CompiledKinetics['jacobian'] {
   const nS = k.species.length, nP = k.parameters.length;
   const names = scalarNames(nS, nP);
+  const wrt = k.species.map((_, j) => speciesPlaceholder(j));
   let body = '';
-  for (let i = 0; i < nS; i++) {
-    for (let j = 0; j < nS; j++) {
-      let d: MathNode;
-      try {
-        d = derivative(k.rates[i], speciesPlaceholder(j));
-      } catch (e) {
-        throw new Error(`the rate of ${k.species[i]} cannot be differentiated with respect to ${k.species[j]}: ${(e as Error).message}`);
-      }
-      body += `out[${i * nS + j}] = ${formulaToCode(d, names)};\n`;
-    }
-  }
+  k.rates.forEach((rate, i) => {
+    const d = forwardDerivativeCode(rate, names, wrt, `d${i}_`);
+    body += `${d.code}\n`;
+    d.partials.forEach((p, j) => (body += `out[${i * nS + j}] = ${p ?? 0};\n`));
+  });
   return new Function('u', 'q', 'out', 'x', 'y', 'z', 't', `"use strict";\n${prologue(nS, nP)}${body}return out;`) as CompiledKinetics['jacobian'];
 }

@@ -1,12 +1,7 @@
 import type { MathNode } from 'mathjs';
-import { FORMULA_CONSTANTS, FORMULA_FUNCTIONS } from './parseFormula.ts';
+import { FORMULA_CONSTANTS, FORMULA_FUNCTIONS, chainGroup } from './parseFormula.ts';
 
-/** Functions that appear only in symbolic derivatives of whitelisted ones. */
-const DERIVATIVE_FUNCTIONS: Readonly<Record<string, string>> = {
-  sech: '1 / Math.cosh',
-  sec: '1 / Math.cos',
-  sign: 'Math.sign',
-};
+const CHAIN_SYMBOLS: Readonly<Record<string, string>> = { add: '+', subtract: '-', multiply: '*', divide: '/' };
 
 /**
  * Translate a formula tree accepted by `parseFormula` into a JavaScript
@@ -31,6 +26,21 @@ export function formulaToCode(node: MathNode, names: Readonly<Record<string, str
     case 'ParenthesisNode':
       return formulaToCode(n.content as MathNode, names);
     case 'OperatorNode': {
+      const group = chainGroup(node);
+      if (group !== undefined) {
+        // a left-deep chain a + b − c … is written flat, one loop instead of one recursion per term;
+        // JavaScript evaluates it left to right, exactly as the tree
+        const links: { op: string; right: MathNode }[] = [];
+        let left: MathNode = node;
+        while (chainGroup(left) === group) {
+          const l = left as unknown as { fn: string; args: MathNode[] };
+          links.push({ op: CHAIN_SYMBOLS[l.fn], right: l.args[1] });
+          left = l.args[0];
+        }
+        let code = formulaToCode(left, names);
+        for (let k = links.length - 1; k >= 0; k--) code += ` ${links[k].op} ${formulaToCode(links[k].right, names)}`;
+        return `(${code})`;
+      }
       const args = (n.args as MathNode[]).map((a) => formulaToCode(a, names));
       switch (n.fn as string) {
         case 'add': return `(${args[0]} + ${args[1]})`;
@@ -55,7 +65,6 @@ export function formulaToCode(node: MathNode, names: Readonly<Record<string, str
       const name = (n.fn as unknown as { name: string }).name;
       const args = (n.args as MathNode[]).map((a) => formulaToCode(a, names)).join(', ');
       if (Object.prototype.hasOwnProperty.call(FORMULA_FUNCTIONS, name)) return `${FORMULA_FUNCTIONS[name].js}(${args})`;
-      if (Object.prototype.hasOwnProperty.call(DERIVATIVE_FUNCTIONS, name)) return `(${DERIVATIVE_FUNCTIONS[name]}(${args}))`;
       throw new Error(`formulaToCode: function ${name}`);
     }
   }

@@ -1,5 +1,6 @@
 import { parse, type MathNode } from 'mathjs';
 import { FormulaError } from './FormulaError.ts';
+import { FORMULA_MAX_LENGTH, FORMULA_MAX_NESTING } from '../defaults.ts';
 
 /**
  * Math functions a formula may call, with their argument counts. Each maps to
@@ -42,6 +43,53 @@ function describeAllowed(symbols: ReadonlySet<string>): string {
   return names.length ? names.join(', ') : '(none)';
 }
 
+/** The children of a formula node (a call's callee excluded). */
+function children(node: MathNode): MathNode[] {
+  const n = node as MathNode & { args?: MathNode[]; content?: MathNode };
+  if (node.type === 'ParenthesisNode') return [n.content!];
+  if (node.type === 'OperatorNode' || node.type === 'FunctionNode') return n.args ?? [];
+  return [];
+}
+
+/** Operators evaluated left to right in a chain (a + b − c, a·b/c): a left-deep chain is one level. */
+const CHAIN_GROUPS: Readonly<Record<string, string>> = { add: 'additive', subtract: 'additive', multiply: 'multiplicative', divide: 'multiplicative' };
+
+/** The chain group of an operator node, or undefined. */
+export function chainGroup(node: MathNode): string | undefined {
+  const n = node as MathNode & { fn?: unknown; args?: MathNode[] };
+  return node.type === 'OperatorNode' && typeof n.fn === 'string' && n.args?.length === 2 ? CHAIN_GROUPS[n.fn] : undefined;
+}
+
+/**
+ * Visit every node of a formula tree (callees excluded) with its parent,
+ * without recursion, so long sums and products cannot overflow the stack.
+ */
+export function forEachFormulaNode(root: MathNode, visit: (node: MathNode, parent: MathNode | null) => void): void {
+  const stack: [MathNode, MathNode | null][] = [[root, null]];
+  while (stack.length) {
+    const [node, parent] = stack.pop()!;
+    visit(node, parent);
+    const kids = children(node);
+    for (let i = kids.length - 1; i >= 0; i--) stack.push([kids[i], node]);
+  }
+}
+
+/**
+ * Nesting depth of a formula: operators, calls and parentheses inside one
+ * another, a left-deep chain of + − or × ÷ counting once (however many terms).
+ */
+function nestingDepth(root: MathNode): number {
+  let deepest = 0;
+  const stack: [MathNode, number][] = [[root, 1]];
+  while (stack.length) {
+    const [node, depth] = stack.pop()!;
+    deepest = Math.max(deepest, depth);
+    const group = chainGroup(node);
+    children(node).forEach((child, i) => stack.push([child, group !== undefined && i === 0 && chainGroup(child) === group ? depth : depth + 1]));
+  }
+  return deepest;
+}
+
 /**
  * Parse a formula with mathjs and accept only arithmetic (+ − × ÷ ^), numbers,
  * the given symbols, the constants pi and e, and the whitelisted functions.
@@ -52,6 +100,14 @@ function describeAllowed(symbols: ReadonlySet<string>): string {
 export function parseFormula(text: string, symbols: ReadonlySet<string>): MathNode {
   if (typeof text !== 'string') throw new FormulaError(String(text), 'a formula must be text');
   if (text.trim() === '') throw new FormulaError(text, 'the formula is empty');
+  if (text.length > FORMULA_MAX_LENGTH) throw new FormulaError(text, `too long: at most ${FORMULA_MAX_LENGTH} characters are accepted (give long expressions a parameter, or split them)`);
+  // parentheses and calls nested deeper than the parser can follow are refused before parsing
+  let open = 0, deepest = 0;
+  for (let i = 0; i < text.length; i++) {
+    if (text[i] === '(') deepest = Math.max(deepest, ++open);
+    else if (text[i] === ')') open--;
+  }
+  if (deepest > FORMULA_MAX_NESTING) throw new FormulaError(text, `parentheses and calls are nested ${deepest} deep; at most ${FORMULA_MAX_NESTING} levels are accepted`);
   let root: MathNode;
   try {
     root = parse(text);
@@ -85,7 +141,16 @@ export function parseFormula(text: string, symbols: ReadonlySet<string>): MathNo
         if (!OPERATORS.has(fn)) {
           throw new FormulaError(text, `operator "${n.op as string}" is not allowed (only + - * / ^)`, columnOf(text, n.op as string));
         }
-        for (const a of n.args as MathNode[]) visit(a);
+        // a chain (a + b + c …) is checked link by link, not by recursion
+        let link: MathNode = node;
+        const group = chainGroup(node);
+        while (group !== undefined && chainGroup(link) === group) {
+          const [left, right] = (link as unknown as { args: MathNode[] }).args;
+          visit(right);
+          link = left;
+        }
+        if (link !== node) visit(link);
+        else for (const a of n.args as MathNode[]) visit(a);
         return;
       }
       case 'FunctionNode': {
@@ -112,6 +177,8 @@ export function parseFormula(text: string, symbols: ReadonlySet<string>): MathNo
         throw new FormulaError(text, `${node.type.replace(/Node$/, '').toLowerCase()} "${node.toString().replace(/\s+/g, ' ')}" is not allowed: only arithmetic on numbers, names and functions`);
     }
   };
+  const depth = nestingDepth(root);
+  if (depth > FORMULA_MAX_NESTING) throw new FormulaError(text, `the formula nests ${depth} levels deep; at most ${FORMULA_MAX_NESTING} are accepted`);
   visit(root);
   return root;
 }
@@ -119,12 +186,10 @@ export function parseFormula(text: string, symbols: ReadonlySet<string>): MathNo
 /** The names a parsed formula uses (constants excluded). */
 export function formulaSymbols(node: MathNode): Set<string> {
   const out = new Set<string>();
-  node.traverse((n: MathNode, _path: string, parent: MathNode | null) => {
-    if (n.type === 'SymbolNode') {
-      const name = (n as unknown as { name: string }).name;
-      const isCallee = parent?.type === 'FunctionNode' && (parent as unknown as { fn: MathNode }).fn === n;
-      if (!isCallee && !(name in FORMULA_CONSTANTS)) out.add(name);
-    }
+  forEachFormulaNode(node, (n) => {
+    if (n.type !== 'SymbolNode') return;
+    const name = (n as unknown as { name: string }).name;
+    if (!Object.prototype.hasOwnProperty.call(FORMULA_CONSTANTS, name)) out.add(name);
   });
   return out;
 }
