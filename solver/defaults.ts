@@ -11,6 +11,10 @@ export const DEFAULT_SEED = 1;
 /** Vertex target of a built-in shape, and the most any mesh may have after its refinements. */
 export const DEFAULT_SHAPE_VERTICES = 10_000;
 export const MAX_SHAPE_VERTICES = 5_000_000;
+/** The largest mesh file read (text formats are read line by line, binary ones in pieces). */
+export const MESH_FILE_MAX_BYTES = 4 * 2 ** 30;
+/** The largest scenario or sweep file read: a scenario is a page of settings; data belong in mesh files. */
+export const TEXT_FILE_MAX_BYTES = 2 ** 20;
 /** Eigenvalues closer than this relative gap are reported as one multiple eigenvalue. */
 export const EIGEN_CLUSTER_TOLERANCE = 0.01;
 /** Eigenpairs `placode modes` computes. */

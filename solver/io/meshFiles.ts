@@ -1,24 +1,27 @@
-import { readFileSync, writeFileSync, existsSync, renameSync } from 'node:fs';
 import { basename } from 'node:path';
 import type { Mesh } from '../mesh/Mesh.ts';
 import { formatFromName, MeshFileError } from './MeshFileError.ts';
-import { parseMeshFile, type ImportedMesh } from './parseMeshFile.ts';
+import { readMesh, type ImportedMesh } from './parseMeshFile.ts';
+import { fileByteSource, regularFileSize, writeFileAtomic as writeAtomic } from './fileAccess.ts';
+import { MESH_FILE_MAX_BYTES } from '../defaults.ts';
 import { writePly, type PlyWriteOptions } from './writePly.ts';
 import { writeObj } from './writeObj.ts';
 import { writeStl } from './writeStl.ts';
 import { writeOff } from './writeOff.ts';
 
-/** Read a mesh file from disk (Node only); errors name the file. */
+/**
+ * Read a mesh file from disk (Node only): a regular file of at most
+ * MESH_FILE_MAX_BYTES, read piece by piece (text formats line by line), so
+ * memory stays near the size of the mesh itself. Errors name the file.
+ */
 export function loadMeshFile(path: string): ImportedMesh {
-  let bytes: Uint8Array;
+  regularFileSize(path, 'mesh file', MESH_FILE_MAX_BYTES, (m) => new MeshFileError(path, m.slice(path.length + 2)));
+  const source = fileByteSource(path);
   try {
-    bytes = readFileSync(path);
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'is a directory, not a mesh file' : (e as Error).message;
-    throw new MeshFileError(path, why);
+    return readMesh(source);
+  } finally {
+    source.close();
   }
-  return parseMeshFile(bytes, path);
 }
 
 /** Encode a mesh in the format its file name's extension names. */
@@ -36,15 +39,10 @@ export function encodeMesh(mesh: Mesh, name: string, ply: PlyWriteOptions = {}):
 
 /**
  * Write bytes atomically (temporary file, then rename), refusing to replace an
- * existing file unless `force`.
+ * existing file unless `force`; a failed write names the file and the cause.
  */
 export function writeFileAtomic(path: string, bytes: Uint8Array | string, force = false): void {
-  if (!force && existsSync(path)) {
-    throw new MeshFileError(path, 'already exists; pass --force to overwrite it');
-  }
-  const tmp = `${path}.${process.pid}.tmp`;
-  writeFileSync(tmp, bytes);
-  renameSync(tmp, path);
+  writeAtomic(path, bytes, force, (m) => new MeshFileError(path, m.slice(path.length + 2)));
 }
 
 export function saveMeshFile(path: string, mesh: Mesh, options: PlyWriteOptions & { force?: boolean } = {}): void {

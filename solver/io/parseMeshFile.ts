@@ -4,6 +4,7 @@ import { parseObj } from './parseObj.ts';
 import { parseOff } from './parseOff.ts';
 import { parsePly } from './parsePly.ts';
 import { parseStl } from './parseStl.ts';
+import { memoryByteSource, readExactly, type ByteSource } from './ByteSource.ts';
 
 export interface ImportedMesh {
   mesh: Mesh;
@@ -14,30 +15,37 @@ export interface ImportedMesh {
   notes: string[];
 }
 
-/**
- * Parse mesh file contents (no file system: usable in a browser worker). The
- * format comes from the name's extension, else from the first bytes.
- */
+/** Parse mesh file contents already in memory (no file system: usable in a browser worker). */
 export function parseMeshFile(bytes: Uint8Array, name: string): ImportedMesh {
-  if (bytes.length === 0) throw new MeshFileError(name, 'is empty');
-  const format = formatFromName(name) ?? sniffFormat(bytes);
+  return readMesh(memoryByteSource(bytes, name));
+}
+
+/**
+ * Read a mesh from a byte source (a file on disk read piece by piece, or bytes
+ * in memory). The format comes from the name's extension, else from the first
+ * bytes. Text formats are read line by line, binary ones in bounded pieces.
+ */
+export function readMesh(source: ByteSource): ImportedMesh {
+  const name = source.name;
+  if (source.size === 0) throw new MeshFileError(name, 'is empty');
+  const format = formatFromName(name) ?? sniffFormat(readExactly(source, 0, Math.min(source.size, 256), 'the first bytes'), source.size);
   if (!format) {
     throw new MeshFileError(name, 'has an unknown extension and content; meshes are read from .ply, .obj, .stl or .off files');
   }
   switch (format) {
-    case 'ply': return parsePly(bytes, name);
-    case 'obj': return parseObj(bytes, name);
-    case 'stl': return parseStl(bytes, name);
-    case 'off': return parseOff(bytes, name);
+    case 'ply': return parsePly(source);
+    case 'obj': return parseObj(source);
+    case 'stl': return parseStl(source);
+    case 'off': return parseOff(source);
   }
 }
 
-function sniffFormat(bytes: Uint8Array): MeshFormat | null {
+function sniffFormat(bytes: Uint8Array, size: number): MeshFormat | null {
   const head = new TextDecoder('latin1').decode(bytes.subarray(0, 256));
   if (head.startsWith('ply')) return 'ply';
   if (head.startsWith('OFF')) return 'off';
   if (head.trimStart().startsWith('solid')) return 'stl';
   if (/^\s*(#.*\n\s*)*(v|o|g|mtllib)\s/m.test(head)) return 'obj';
-  if (bytes.length >= 84 && 84 + 50 * new DataView(bytes.buffer, bytes.byteOffset).getUint32(80, true) === bytes.length) return 'stl';
+  if (bytes.length >= 84 && 84 + 50 * new DataView(bytes.buffer, bytes.byteOffset).getUint32(80, true) === size) return 'stl';
   return null;
 }

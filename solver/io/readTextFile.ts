@@ -1,12 +1,19 @@
 import { readFileSync } from 'node:fs';
 import { UsageError } from '../UsageError.ts';
+import { fileErrorWords, regularFileSize } from './fileAccess.ts';
+import { TEXT_FILE_MAX_BYTES } from '../defaults.ts';
 
-/** A text file's contents; a missing file or a directory is a usage error that says what was expected (`what`). */
+/**
+ * A text file's contents (a scenario, a sweep): a regular file of at most
+ * TEXT_FILE_MAX_BYTES, checked before it is read; a missing file, a directory,
+ * a device or pipe, or a file too large is a usage error that says what was
+ * expected (`what`).
+ */
 export function readTextFile(file: string, what: string): string {
+  regularFileSize(file, what, TEXT_FILE_MAX_BYTES, (m) => new UsageError(m));
   try {
     return readFileSync(file, 'utf8');
   } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new UsageError(`${file}: ${code === 'ENOENT' ? `no such ${what}` : code === 'EISDIR' ? `is a directory, not a ${what}` : (e as Error).message}`);
+    throw new UsageError(`${file}: ${fileErrorWords(e)}`);
   }
 }

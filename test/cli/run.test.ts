@@ -279,7 +279,7 @@ describe('bad scenarios each get their own clear error', () => {
     ['malformed formula', 'mesh: {shape: sphere}\nkinetics: {species: [a], reactions: {a: "a*(1 - a"}}\ntime: {end: 1, step: 0.1}\n', /kinetics\.reactions\.a: in "a\*\(1 - a" at column 10: cannot parse: Parenthesis \) expected/],
     ['unsafe formula', 'mesh: {shape: sphere}\nkinetics: {species: [a], reactions: {a: "a.constructor"}}\ntime: {end: 1, step: 0.1}\n', /kinetics\.reactions\.a: in "a\.constructor" at column 1: property or index access "a\.constructor" is not allowed/],
     ['unknown symbol', 'mesh: {shape: sphere}\nkinetics: {species: [a], reactions: {a: "a*r"}}\ntime: {end: 1, step: 0.1}\n', /kinetics\.reactions\.a: in "a\*r" at column 3: unknown name "r"; allowed names: a, t, x, y, z/],
-    ['missing mesh file', 'mesh: {file: nowhere.ply}\nkinetics: {model: gray-scott}\ntime: {end: 1}\n', /mesh\.file: .*nowhere\.ply.*no such file/],
+    ['missing mesh file', 'mesh: {file: nowhere.ply}\nkinetics: {model: gray-scott}\ntime: {end: 1}\n', /mesh\.file: .*nowhere\.ply.*no such mesh file/],
     ['unknown shape', 'mesh: {shape: sphear}\nkinetics: {model: gray-scott}\ntime: {end: 1}\n', /mesh\.shape: unknown shape "sphear"/],
     ['unknown key', 'mesh: {shape: sphere}\nkinetics: {model: gray-scott}\ntime: {end: 1, stp: 2}\n', /time\.stp: unknown key \(did you mean "step"\?\)/],
     ['unknown parameter', 'mesh: {shape: sphere}\nkinetics: {model: gray-scott, parameters: {f: 0.03}}\ntime: {end: 1}\n', /kinetics\.parameters\.f: Gray–Scott has no parameter "f" \(did you mean "F"\?\)/],
