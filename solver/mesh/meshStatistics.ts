@@ -8,7 +8,10 @@ export interface MeshStatistics {
   vertices: number;
   triangles: number;
   area: number;
+  /** total genus over the components; null (NaN) when a component is not an orientable manifold */
   genus: number;
+  /** the genus of each component, when there are several */
+  componentGenus?: number[];
   boundaryLoops: number;
   components: number;
   eulerCharacteristic: number;
@@ -27,6 +30,7 @@ export function meshStatistics(mesh: Mesh): MeshStatistics {
     triangles: mesh.triangles.length / 3,
     area: broken ? NaN : meshArea(mesh),
     genus: topo ? topo.genus : NaN,
+    componentGenus: topo && topo.componentCount > 1 ? [...topo.componentGenus] : undefined,
     boundaryLoops: topo ? topo.boundaryLoops.length : 0,
     components: topo ? topo.componentCount : 0,
     eulerCharacteristic: topo ? topo.eulerCharacteristic : NaN,

@@ -39,7 +39,10 @@ export interface MeshTopology {
   /** V − E + F over referenced vertices. */
   readonly eulerCharacteristic: number;
   /** Sum over components of (2 − χ − b)/2; meaningful for orientable manifolds. */
+  /** total genus (handles) over the components; NaN when a component is not an orientable manifold surface */
   readonly genus: number;
+  /** genus of each component (NaN where it has none) */
+  readonly componentGenus: readonly number[];
 }
 
 const cache = new WeakMap<Uint32Array, MeshTopology>();
@@ -214,12 +217,16 @@ function buildTopology(tri: Uint32Array, nV: number): MeshTopology {
   for (let e = 0; e < nE; e++) chi[vertexComponent[edges[2 * e]]]--;
   for (let t = 0; t < nF; t++) chi[vertexComponent[tri[3 * t]]]++;
   for (const loop of boundaryLoops) loops[vertexComponent[loop[0]]]++;
-  let genus = 0;
+  // a component's genus is (2 − χ − b)/2: a whole number ≥ 0 for an orientable manifold; otherwise (a
+  // non-manifold or non-orientable component) it has none, and neither has the whole mesh
+  const componentGenus: number[] = [];
   let eulerCharacteristic = 0;
   for (let c = 0; c < componentCount; c++) {
-    genus += (2 - chi[c] - loops[c]) / 2;
+    const g = (2 - chi[c] - loops[c]) / 2;
+    componentGenus.push(Number.isInteger(g) && g >= 0 && nonManifoldEdgeCount === 0 ? g : NaN);
     eulerCharacteristic += chi[c];
   }
+  const genus = componentGenus.reduce((a, g) => a + g, 0);
 
   return {
     vertexCount: nV,
@@ -242,6 +249,7 @@ function buildTopology(tri: Uint32Array, nV: number): MeshTopology {
     referencedVertexCount,
     eulerCharacteristic,
     genus,
+    componentGenus,
   };
 }
 

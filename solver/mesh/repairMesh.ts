@@ -6,6 +6,8 @@ import { refineMidpoint } from './refineMidpoint.ts';
 import { loopSubdivide } from './loopSubdivide.ts';
 import { prolongField } from './Refinement.ts';
 import { validateMesh } from './validateMesh.ts';
+import { meshTopology } from './meshTopology.ts';
+import { MAX_SHAPE_VERTICES } from '../defaults.ts';
 
 export interface MeshRepairs {
   /** weld vertices closer than this (0: identical only); undefined: no welding */
@@ -14,6 +16,14 @@ export interface MeshRepairs {
   fixOrientation?: boolean;
   refine?: number;
   loop?: number;
+}
+
+/** A repair or refinement that cannot be made, with the option that asked for it. */
+export class MeshRepairError extends Error {
+  constructor(readonly option: keyof MeshRepairs, message: string) {
+    super(message);
+    this.name = 'MeshRepairError';
+  }
 }
 
 /**
@@ -48,7 +58,7 @@ export function repairMesh(input: Mesh, data: Record<string, Float64Array>, o: M
   }
   if (o.fixOrientation) {
     const pre = validateMesh(mesh);
-    if (pre.errors.length > 0) throw new Error(`cannot reorient a mesh with errors: ${pre.errors[0].message}`);
+    if (pre.errors.length > 0) throw new MeshRepairError('fixOrientation', `cannot reorient a mesh with errors: ${pre.errors[0].message}`);
     const r = orientTriangles(mesh);
     mesh = r.mesh;
     notes.push(r.orientable ? `reoriented ${r.flipped} triangles` : 'the surface is not orientable; orientation left partly inconsistent');
@@ -57,7 +67,16 @@ export function repairMesh(input: Mesh, data: Record<string, Float64Array>, o: M
   const loop = o.loop ?? 0;
   if (refine + loop > 0) {
     const pre = validateMesh(mesh);
-    if (pre.errors.length > 0) throw new Error(`cannot refine a mesh with errors: ${pre.errors[0].message}`);
+    if (pre.errors.length > 0) throw new MeshRepairError(refine ? 'refine' : 'loop', `cannot refine a mesh with errors: ${pre.errors[0].message}`);
+    // every 1-to-4 step adds a vertex per edge: V' = V + E, E' = 2E + 3F, F' = 4F; refused before any work
+    const topo = meshTopology(mesh);
+    let v = topo.vertexCount, e = topo.edgeCount, f = topo.triangleCount;
+    for (let k = 1; k <= refine + loop; k++) {
+      [v, e, f] = [v + e, 2 * e + 3 * f, 4 * f];
+      if (v > MAX_SHAPE_VERTICES) {
+        throw new MeshRepairError(refine ? 'refine' : 'loop', `refining ${refine + loop} times would make more than ${MAX_SHAPE_VERTICES} vertices, the most a mesh may have (${k} times already make ${v} from ${topo.vertexCount}): refine fewer times or start coarser`);
+      }
+    }
   }
   for (let i = 0; i < refine; i++) {
     const r = refineMidpoint(mesh);

@@ -10,6 +10,7 @@ import { resolveGrowth } from './resolveGrowth.ts';
 import { Linearisation } from './linearisation.ts';
 import type { ReactionDiffusionSystem } from '../integrate/ReactionDiffusionSystem.ts';
 import { DEFAULT_SEED } from '../defaults.ts';
+import { MeshRepairError } from '../mesh/repairMesh.ts';
 
 export type { LoadedMesh, ResolvedScenario, ScenarioEnvironment, AnalysisPlan, GrowthPlan, OutputPlan } from './ResolvedScenario.ts';
 
@@ -108,7 +109,7 @@ function loadMesh(ctx: ResolveContext, env: ScenarioEnvironment): LoadedMesh {
   try {
     return env.loadMesh(spec);
   } catch (e) {
-    ctx.problems.add(['mesh', spec.file !== undefined ? 'file' : 'shape'], (e as Error).message);
+    ctx.problems.add(['mesh', e instanceof MeshRepairError ? e.option : spec.file !== undefined ? 'file' : 'shape'], (e as Error).message);
     ctx.problems.fail(ctx.file);
     throw e;
   }

@@ -248,7 +248,7 @@ worker.onmessage = (event: MessageEvent<FromSimulation>) => {
       byId('mode-list').replaceChildren();
       byId('dispersion').replaceChildren();
       const s = m.stats;
-      byId('tissue-stats').textContent = `${s.vertices} vertices · ${s.triangles} triangles · area ${fmt(s.area)} · genus ${s.genus} · ${s.boundaryLoops} boundary loop(s) · ${s.components} component(s) · mean edge ${fmt(s.meanEdge)}`;
+      byId('tissue-stats').textContent = `${s.vertices} vertices · ${s.triangles} triangles · area ${fmt(s.area)} · genus ${Number.isNaN(s.genus) ? "none (not an orientable manifold)" : s.genus} · ${s.boundaryLoops} boundary loop(s) · ${s.components} component(s) · mean edge ${fmt(s.meanEdge)}`;
       byId('clock-stats').textContent = `${m.scheme}${m.scheme === 'imex' ? ` (${m.solver})` : ''}, dt = ${fmt(m.dt)}, to t = ${fmt(m.end)}, a frame every ${fmt(m.every)}${m.growing ? ', growing' : ''}`;
       for (const w of [...m.notes, ...m.warnings]) say(w, 'warning');
       say(`set up: ${m.species.join(', ')} on ${s.vertices} vertices`);
@@ -382,7 +382,7 @@ async function openMeshFile(file: File) {
     }
     openedFiles[file.name] = { mesh: imported.mesh, vertexData: imported.vertexData, notes: imported.notes, source: { file: file.name } };
     for (const w of [...imported.notes, ...stats.warnings]) say(`${file.name}: ${w}`, 'warning');
-    say(`opened ${file.name}: ${stats.vertices} vertices, ${stats.triangles} triangles, genus ${stats.genus}, ${stats.boundaryLoops} boundary loop(s)`);
+    say(`opened ${file.name}: ${stats.vertices} vertices, ${stats.triangles} triangles, genus ${Number.isNaN(stats.genus) ? "none (not an orientable manifold)" : stats.genus}, ${stats.boundaryLoops} boundary loop(s)`);
     form.setMesh({ name: file.name, vertices: stats.vertices });
     setUp();
   } catch (e) {

@@ -31,7 +31,7 @@ export const registerMesh: RegisterCommand = (program, ctx) => {
         const e = stats.edgeLength;
         process.stdout.write(
           `${spec}: ${stats.vertices} vertices, ${stats.triangles} triangles\n` +
-            `  area ${fmt(stats.area)}, genus ${stats.genus}, ${stats.boundaryLoops} boundary loop(s), ${stats.components} component(s), Euler characteristic ${stats.eulerCharacteristic}\n` +
+            `  area ${fmt(stats.area)}, ${genusText(stats)}, ${stats.boundaryLoops} boundary loop(s), ${stats.components} component(s), Euler characteristic ${stats.eulerCharacteristic}\n` +
             `  edge length min ${fmt(e.min)} mean ${fmt(e.mean)} max ${fmt(e.max)}\n`,
         );
         for (const n of r.notes) process.stdout.write(`  note: ${n}\n`);
@@ -42,3 +42,13 @@ export const registerMesh: RegisterCommand = (program, ctx) => {
       if (stats.errors.length > 0) ctx.setExitCode(1);
     });
 };
+
+/** "genus 1", "genus 1 (components 0 and 1)", or why there is none. */
+function genusText(stats: { genus: number; componentGenus?: number[] }): string {
+  const each = stats.componentGenus;
+  if (Number.isNaN(stats.genus)) {
+    const bad = each ? each.map((g, c) => (Number.isNaN(g) ? c : -1)).filter((c) => c >= 0) : [0];
+    return `no genus (${each ? `component${bad.length > 1 ? 's' : ''} ${bad.join(', ')} ${bad.length > 1 ? 'are' : 'is'}` : 'the surface is'} not an orientable manifold)`;
+  }
+  return each ? `genus ${stats.genus} (components: ${each.join(', ')})` : `genus ${stats.genus}`;
+}
