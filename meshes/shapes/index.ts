@@ -31,7 +31,7 @@ export interface ShapeRequest {
  * inconsistent combinations are reported together in one error.
  */
 export function buildShape(request: ShapeRequest): { mesh: Mesh; params: Record<string, number>; vertices: number } {
-  const def = SHAPES[request.shape];
+  const def = Object.hasOwn(SHAPES, request.shape) ? SHAPES[request.shape] : undefined;
   if (!def) {
     throw new Error(`unknown shape "${request.shape}"; built-in shapes are: ${Object.keys(SHAPES).join(', ')}`);
   }
@@ -47,7 +47,7 @@ export function buildShape(request: ShapeRequest): { mesh: Mesh; params: Record<
 export function resolveShapeParams(def: ShapeDefinition, given: Record<string, number>): Record<string, number> {
   const problems: string[] = [];
   for (const key of Object.keys(given)) {
-    if (!(key in def.parameters)) {
+    if (!Object.hasOwn(def.parameters, key)) {
       problems.push(`unknown parameter "${key}" (parameters of ${def.name}: ${Object.keys(def.parameters).join(', ')})`);
     }
   }

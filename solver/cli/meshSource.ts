@@ -34,7 +34,7 @@ export async function resolveMesh(spec: string, o: MeshSourceOptions): Promise<R
   let source: ResolvedMesh['source'];
   let vertexData: Record<string, Float64Array> = {};
   const notes: string[] = [];
-  if (spec in SHAPES) {
+  if (Object.hasOwn(SHAPES, spec)) {
     const vertices = parseCount(o.vertices, '--vertices', 4);
     const built = buildShape({ shape: spec, params: parseParams(o.param), vertices });
     mesh = built.mesh;

@@ -26,7 +26,7 @@ const luts = new Map<ColormapName, Uint8Array>();
 export function colormapTable(name: ColormapName): Uint8Array {
   let lut = luts.get(name);
   if (lut) return lut;
-  const f = COLORMAPS[name];
+  const f = Object.hasOwn(COLORMAPS, name) ? COLORMAPS[name] : undefined;
   if (!f) throw new Error(`unknown colormap "${name}"; choose one of ${COLORMAP_NAMES.join(', ')}`);
   lut = new Uint8Array(3 * LUT_SIZE);
   for (let i = 0; i < LUT_SIZE; i++) {

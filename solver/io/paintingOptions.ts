@@ -24,7 +24,7 @@ export function fixedRangeOption(text: string, accepted: string): [number, numbe
 
 /** A view preset (front, iso, …) or `azimuth,elevation` in degrees; `presetsOnly` refuses the angles. */
 export function viewOption(text: string, presetsOnly = false): { azimuth: number; elevation: number } {
-  const preset = VIEW_PRESETS[text];
+  const preset = Object.hasOwn(VIEW_PRESETS, text) ? VIEW_PRESETS[text] : undefined;
   if (preset) return preset;
   const m = presetsOnly ? null : /^(-?[0-9.]+),(-?[0-9.]+)$/.exec(text);
   if (!m) throw new UsageError(presetsOnly ? `--view "${text}": one of ${Object.keys(VIEW_PRESETS).join(', ')}` : `--view "${text}": a preset (${Object.keys(VIEW_PRESETS).join(', ')}) or azimuth,elevation in degrees`);

@@ -12,9 +12,10 @@ const NAME = /^[A-Za-z][A-Za-z0-9_]*$/;
 /** Why a species or parameter name cannot be used, or undefined if it can. */
 export function nameProblem(name: string): string | undefined {
   if (!NAME.test(name)) return `"${name}" is not a valid name: use a letter followed by letters, digits or _`;
+  if (name in Object.prototype) return `"${name}" is reserved (a property every JavaScript object has): choose another name`;
   if ((COORDINATE_NAMES as readonly string[]).includes(name)) return `"${name}" is reserved for the coordinates and time (x, y, z, t)`;
-  if (name in FORMULA_CONSTANTS) return `"${name}" is reserved for a constant (pi, e)`;
-  if (name in FORMULA_FUNCTIONS) return `"${name}" is the name of a function`;
+  if (Object.hasOwn(FORMULA_CONSTANTS, name)) return `"${name}" is reserved for a constant (pi, e)`;
+  if (Object.hasOwn(FORMULA_FUNCTIONS, name)) return `"${name}" is the name of a function`;
   return undefined;
 }
 

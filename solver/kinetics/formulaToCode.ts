@@ -20,7 +20,7 @@ export function formulaToCode(node: MathNode, names: Readonly<Record<string, str
     case 'SymbolNode': {
       const name = n.name as string;
       if (Object.prototype.hasOwnProperty.call(names, name)) return names[name];
-      if (name in FORMULA_CONSTANTS) return String(FORMULA_CONSTANTS[name]);
+      if (Object.hasOwn(FORMULA_CONSTANTS, name)) return String(FORMULA_CONSTANTS[name]);
       throw new Error(`formulaToCode: no variable for "${name}"`);
     }
     case 'ParenthesisNode':

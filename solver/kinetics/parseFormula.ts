@@ -129,8 +129,8 @@ export function parseFormula(text: string, symbols: ReadonlySet<string>): MathNo
       }
       case 'SymbolNode': {
         const name = n.name as string;
-        if (symbols.has(name) || name in FORMULA_CONSTANTS) return;
-        const hint = name in FORMULA_FUNCTIONS ? ` (${name} is a function: write ${name}(...))` : '';
+        if (symbols.has(name) || Object.hasOwn(FORMULA_CONSTANTS, name)) return;
+        const hint = Object.hasOwn(FORMULA_FUNCTIONS, name) ? ` (${name} is a function: write ${name}(...))` : '';
         throw new FormulaError(text, `unknown name "${name}"${hint}; ${allowed}`, columnOf(text, name));
       }
       case 'ParenthesisNode':

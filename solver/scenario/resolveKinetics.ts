@@ -26,7 +26,7 @@ export function resolveKinetics(ctx: ResolveContext): KineticsPlan {
   const { problems } = ctx;
   const plan: KineticsPlan = { species: [], reactions: {}, parameterSpec: {} };
   if (k.model !== undefined) {
-    const model = MODELS[k.model];
+    const model = Object.hasOwn(MODELS, k.model) ? MODELS[k.model] : undefined;
     if (!model) {
       const hint = closestName(k.model, Object.keys(MODELS));
       problems.add(['kinetics', 'model'], `unknown model "${k.model}"${hint ? ` (did you mean "${hint}"?)` : ''}; built-in models: ${Object.keys(MODELS).join(', ')}, or give species and reactions for your own`);
@@ -37,7 +37,7 @@ export function resolveKinetics(ctx: ResolveContext): KineticsPlan {
       plan.reactions = { ...model.reactions };
       for (const [name, p] of Object.entries(model.parameters)) plan.parameterSpec[name] = p.default;
       for (const [name, v] of Object.entries(k.parameters ?? {})) {
-        if (!(name in model.parameters)) {
+        if (!Object.hasOwn(model.parameters, name)) {
           const hint = closestName(name, Object.keys(model.parameters));
           problems.add(['kinetics', 'parameters', name], `${model.title} has no parameter "${name}"${hint ? ` (did you mean "${hint}"?)` : ''}; its parameters: ${Object.keys(model.parameters).join(', ')}`);
         } else plan.parameterSpec[name] = v;

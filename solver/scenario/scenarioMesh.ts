@@ -26,7 +26,7 @@ export function scenarioMesh(spec: MeshSpec, readFile: (file: string) => MeshFil
   const notes: string[] = [];
   let source: Record<string, unknown>;
   if (spec.shape !== undefined) {
-    if (!(spec.shape in SHAPES)) throw new Error(`unknown shape "${spec.shape}"; built-in shapes: ${Object.keys(SHAPES).join(', ')}`);
+    if (!Object.hasOwn(SHAPES, spec.shape)) throw new Error(`unknown shape "${spec.shape}"; built-in shapes: ${Object.keys(SHAPES).join(', ')}`);
     const built = buildShape({ shape: spec.shape, params: spec.params, vertices: spec.vertices });
     mesh = built.mesh;
     source = { shape: spec.shape, params: built.params, vertices: built.vertices };

@@ -78,7 +78,7 @@ export const registerSweep: RegisterCommand = (program, ctx) => {
       const total = s.runs.length;
       process.stdout.write(`${dir}: ${total} runs — ${Object.entries(s.counts).map(([k, v]) => `${v} ${k}`).join(', ')}\n`);
       if (o.list) {
-        if (!(o.list in s.counts)) throw new UsageError(`--list ${o.list}: one of ${Object.keys(s.counts).join(', ')}`);
+        if (!Object.hasOwn(s.counts, o.list)) throw new UsageError(`--list ${o.list}: one of ${Object.keys(s.counts).join(', ')}`);
         for (const r of s.runs) if (r.state === o.list) process.stdout.write(`  ${String(r.index).padStart(5)}  ${r.id}  ${r.label}${r.message ? `  — ${r.message.split('\n')[0]}` : ''}\n`);
       } else {
         for (const r of s.runs) if (r.state === 'failed') process.stdout.write(`  failed ${r.index} (${r.label}): ${(r.message ?? '').split('\n')[0]}\n`);
