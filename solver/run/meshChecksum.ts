@@ -8,3 +8,8 @@ export function meshChecksum(mesh: Mesh): string {
   h.update(new Uint8Array(mesh.triangles.buffer, mesh.triangles.byteOffset, mesh.triangles.byteLength));
   return `sha256:${h.digest('hex')}`;
 }
+
+/** sha256 of a scenario's text, as a saved state records it (resume checks the state belongs to the run). */
+export function textChecksum(text: string): string {
+  return `sha256:${createHash('sha256').update(text).digest('hex')}`;
+}

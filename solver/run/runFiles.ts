@@ -2,6 +2,7 @@ import type { Mesh } from '../mesh/Mesh.ts';
 import { writePly } from '../io/writePly.ts';
 import { colorizeField, type ColormapName } from '../io/colormap.ts';
 import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
+import { crc32 } from '../io/crc32.ts';
 
 /**
  * The files of a run directory, encoded and decoded without touching the disk:
@@ -103,42 +104,51 @@ export interface SavedState {
   reference?: Float64Array;
   /** a growing run: the surface (positions after `refinements` midpoint refinements of the start mesh) and its update schedule */
   growth?: { refinements: number; lastUpdate: number; nextUpdate: number; edgeAtRefinement: number; positions: Float64Array };
+  /** checksum of the scenario text the state belongs to (resume compares it with the run's record) */
+  scenarioChecksum?: string;
 }
 
-/** state.bin: 8-byte magic, u32 header length, JSON header, padding to 8 bytes, float64 arrays. */
+/**
+ * state.bin: 8-byte magic, u32 header length, JSON header, padding to 8 bytes,
+ * float64 arrays. The header holds the CRC-32 of the arrays (`payloadCrc32`),
+ * so a file damaged after it was written is refused, not resumed from.
+ */
 export function encodeState(s: SavedState): Uint8Array {
   const { state, reference, growth, ...header } = s;
   const growthHeader = growth ? { refinements: growth.refinements, lastUpdate: growth.lastUpdate, nextUpdate: growth.nextUpdate, edgeAtRefinement: growth.edgeAtRefinement } : undefined;
-  const json = new TextEncoder().encode(JSON.stringify({ ...header, hasReference: reference !== undefined, growth: growthHeader }));
+  const arrays = [state, ...(reference ? [reference] : []), ...(growth ? [growth.positions] : [])];
+  const payload = new Uint8Array(arrays.reduce((a, x) => a + x.byteLength, 0));
+  let at = 0;
+  for (const x of arrays) {
+    new Float64Array(payload.buffer, at, x.length).set(x);
+    at += x.byteLength;
+  }
+  const json = new TextEncoder().encode(JSON.stringify({ ...header, hasReference: reference !== undefined, growth: growthHeader, payloadCrc32: crc32(payload) }));
   const headEnd = 12 + json.length;
   const start = Math.ceil(headEnd / 8) * 8;
-  const arrays = [state, ...(reference ? [reference] : []), ...(growth ? [growth.positions] : [])];
-  const bytes = new Uint8Array(start + arrays.reduce((a, x) => a + x.byteLength, 0));
+  const bytes = new Uint8Array(start + payload.length);
   bytes.set(new TextEncoder().encode(MAGIC), 0);
   new DataView(bytes.buffer).setUint32(8, json.length, true);
   bytes.set(json, 12);
-  let at = start;
-  for (const x of arrays) {
-    new Float64Array(bytes.buffer, at, x.length).set(x);
-    at += x.byteLength;
-  }
+  bytes.set(payload, start);
   return bytes;
 }
 
 export function decodeState(bytes: Uint8Array, file: string): SavedState {
   const fail = (why: string): never => {
-    throw new Error(`${file}: not a readable saved state (${why}); it may be from an interrupted write or another program`);
+    throw new Error(`${file}: not a readable saved state (${why}); it may be from an interrupted write, damaged, or from another program: the run cannot be resumed from it (start it again with --force)`);
   };
   if (bytes.length < 12 || new TextDecoder().decode(bytes.subarray(0, 8)) !== MAGIC) fail('wrong signature');
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   const len = view.getUint32(8, true);
   if (12 + len > bytes.length) fail('truncated header');
-  let header: Omit<SavedState, 'state' | 'reference' | 'growth'> & { hasReference: boolean; growth?: { refinements: number; lastUpdate: number; nextUpdate: number; edgeAtRefinement: number } };
+  let header: Omit<SavedState, 'state' | 'reference' | 'growth'> & { hasReference: boolean; payloadCrc32?: number; growth?: { refinements: number; lastUpdate: number; nextUpdate: number; edgeAtRefinement: number } };
   try {
     header = JSON.parse(new TextDecoder().decode(bytes.subarray(12, 12 + len)));
   } catch {
     return fail('damaged header');
   }
+  if (!Number.isInteger(header.vertexCount) || header.vertexCount < 0 || !Array.isArray(header.species)) fail('damaged header');
   const start = Math.ceil((12 + len) / 8) * 8;
   const count = header.vertexCount * header.species.length;
   const positionsCount = header.growth ? 3 * header.vertexCount : 0;
@@ -146,9 +156,10 @@ export function decodeState(bytes: Uint8Array, file: string): SavedState {
   if (bytes.length !== need) fail(`expected ${need} bytes, found ${bytes.length}`);
   const copy = new Uint8Array(bytes.length - start); // own, aligned copy (Node Buffers are views into a pool)
   copy.set(bytes.subarray(start));
+  if (header.payloadCrc32 !== undefined && crc32(copy) !== header.payloadCrc32) fail('its data do not match their checksum: the file was changed or damaged after it was written');
   const state = new Float64Array(copy.buffer, 0, count);
   const reference = header.hasReference ? new Float64Array(copy.buffer, 8 * count, count) : undefined;
   const growth = header.growth ? { ...header.growth, positions: new Float64Array(copy.buffer, 8 * count * (header.hasReference ? 2 : 1), positionsCount) } : undefined;
-  const { hasReference: _drop, growth: _g, ...rest } = header;
+  const { hasReference: _drop, growth: _g, payloadCrc32: _c, ...rest } = header;
   return { ...rest, state, reference, growth };
 }

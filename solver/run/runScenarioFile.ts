@@ -8,7 +8,7 @@ import { ScenarioError } from '../scenario/ScenarioError.ts';
 import { RUN_FILES, decodeState } from './runFiles.ts';
 import { newRunRecord } from './RunRecord.ts';
 import { readRunRecord } from './runDirectory.ts';
-import { meshChecksum } from './meshChecksum.ts';
+import { meshChecksum, textChecksum } from './meshChecksum.ts';
 import { writeRun, type RunOptions, type RunOutcome } from './writeRun.ts';
 import { UsageError } from '../UsageError.ts';
 import { readTextFile } from '../io/readTextFile.ts';
@@ -77,6 +77,9 @@ export async function resumeRun(dir: string, options: RunOptions): Promise<RunOu
   const stateFile = join(out, RUN_FILES.state);
   if (!existsSync(stateFile)) throw new UsageError(`${dir} has no saved state (${RUN_FILES.state}) to resume from`);
   const saved = decodeState(readFileSync(stateFile), stateFile);
+  if (saved.scenarioChecksum !== undefined && saved.scenarioChecksum !== textChecksum(record.scenarioText)) {
+    throw new UsageError(`${stateFile} belongs to another scenario than the one in ${join(dir, RUN_FILES.record)}: it cannot be resumed from; start the run again with --force`);
+  }
   if (saved.meshChecksum !== checksum || saved.dt !== resolved.dt || saved.species.join() !== resolved.species.join()) {
     throw new UsageError(`${stateFile} does not belong to this run's mesh, step or species`);
   }

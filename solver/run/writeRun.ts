@@ -11,6 +11,7 @@ import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
 import { encodeSnapshot } from '../io/encodeSnapshot.ts';
 import { colorizeField } from '../io/colormap.ts';
 import { VERSION } from '../version.ts';
+import { textChecksum } from './meshChecksum.ts';
 import { RUN_CHUNK_MS } from '../defaults.ts';
 
 export interface RunOptions {
@@ -73,8 +74,9 @@ export async function writeRun(out: string, r: ResolvedScenario, record: RunReco
     record.updated = new Date().toISOString();
     writeFileAtomic(join(out, RUN_FILES.record), JSON.stringify(record, null, 2) + '\n', true);
   };
+  const scenarioChecksum = textChecksum(record.scenarioText);
   const saveState = (state: Float64Array, atStep: number) => {
-    writeFileAtomic(join(out, RUN_FILES.state), encodeState({ step: atStep, time: atStep * dt, nextFrame, species: [...r.species], vertexCount: engine.vertexCount, meshChecksum: record.mesh.checksum, dt, state, ...engine.savedParts() }), true);
+    writeFileAtomic(join(out, RUN_FILES.state), encodeState({ step: atStep, time: atStep * dt, nextFrame, species: [...r.species], vertexCount: engine.vertexCount, meshChecksum: record.mesh.checksum, scenarioChecksum, dt, state, ...engine.savedParts() }), true);
   };
   const comments = (atStep: number) => [`placode ${VERSION} run ${r.name}`, `time ${atStep * dt} step ${atStep}`];
   const style = { colour: r.output.colour, colormap: r.output.colormap, range: r.output.range };
