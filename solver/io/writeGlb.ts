@@ -21,9 +21,13 @@ export const glbAttribute = (name: string) => `_${name.toUpperCase()}`;
  * Binary glTF 2.0 (.glb) of a coloured surface: POSITION, NORMAL, COLOR_0
  * (the sRGB vertex colours converted to the linear values glTF specifies) and
  * every per-vertex field as a float application attribute `_NAME` (glTF 2.0
- * §3.7.2.1: application-specific attributes start with an underscore), with
+ * §3.7.2.1: application-specific attributes start with an underscore; values
+ * beyond single precision's range are clamped to it), with
  * 32-bit triangle indices. Written with @gltf-transform/core.
  */
+/** The largest finite single-precision number. */
+const FLOAT32_MAX = 3.4028234663852886e38;
+
 export async function writeGlb(mesh: Mesh, options: { colors?: Uint8Array; properties?: Record<string, ArrayLike<number>>; name?: string } = {}): Promise<Uint8Array> {
   const doc = new Document();
   const buffer = doc.createBuffer();
@@ -40,7 +44,8 @@ export async function writeGlb(mesh: Mesh, options: { colors?: Uint8Array; prope
   }
   for (const [name, values] of Object.entries(options.properties ?? {})) {
     if (values.length !== n) throw new Error(`writeGlb: "${name}" has ${values.length} values for ${n} vertices`);
-    prim.setAttribute(glbAttribute(name), accessor(Float32Array.from(values), 'SCALAR'));
+    // glTF attributes are single precision: a finite value beyond its range is clamped to the largest float, not made infinite
+    prim.setAttribute(glbAttribute(name), accessor(Float32Array.from(values, (v) => (Number.isFinite(v) ? Math.max(-FLOAT32_MAX, Math.min(FLOAT32_MAX, v)) : v)), 'SCALAR'));
   }
   const material = doc.createMaterial('surface').setRoughnessFactor(0.8).setMetallicFactor(0);
   prim.setMaterial(material);

@@ -5,16 +5,24 @@ export interface PlyWriteOptions {
   encoding?: 'binary' | 'ascii';
   /** per-vertex sRGB colours, Uint8Array(3·nV), written as uchar red green blue */
   colors?: Uint8Array;
-  /** per-vertex scalar fields, written as float properties after the colours */
+  /** per-vertex scalar fields, written as float properties after the colours (double where a value would overflow float) */
   properties?: Record<string, ArrayLike<number>>;
   comments?: string[];
 }
 
 const NAME = /^[A-Za-z_][A-Za-z0-9_]*$/;
 
+/** True when some finite value is beyond single precision's range (it would be written as infinity). */
+function overflowsFloat(values: ArrayLike<number>): boolean {
+  for (let i = 0; i < values.length; i++) if (Number.isFinite(values[i]) && !Number.isFinite(Math.fround(values[i]))) return true;
+  return false;
+}
+
 /**
- * PLY (Turk 1994): vertex x y z as float, optional uchar colours, optional float
- * scalar properties, faces as `list uchar int vertex_indices`.
+ * PLY (Turk 1994): vertex x y z as float, optional uchar colours, optional
+ * scalar properties as float — as double where a finite value would overflow
+ * single precision, so a field about to blow up is kept finite —, faces as
+ * `list uchar int vertex_indices`.
  */
 export function writePly(mesh: Mesh, options: PlyWriteOptions = {}): Uint8Array {
   const nV = mesh.positions.length / 3;
@@ -31,7 +39,8 @@ export function writePly(mesh: Mesh, options: PlyWriteOptions = {}): Uint8Array 
   for (const c of options.comments ?? []) header += `comment ${c.replace(/\n/g, ' ')}\n`;
   header += `element vertex ${nV}\nproperty float x\nproperty float y\nproperty float z\n`;
   if (colors) header += 'property uchar red\nproperty uchar green\nproperty uchar blue\n';
-  for (const [name] of props) header += `property float ${name}\n`;
+  const wide = props.map(([, values]) => overflowsFloat(values));
+  props.forEach(([name], k) => (header += `property ${wide[k] ? 'double' : 'float'} ${name}\n`));
   header += `element face ${nF}\nproperty list uchar int vertex_indices\nend_header\n`;
   const head = new TextEncoder().encode(header);
   const p = mesh.positions;
@@ -41,7 +50,7 @@ export function writePly(mesh: Mesh, options: PlyWriteOptions = {}): Uint8Array 
     for (let v = 0; v < nV; v++) {
       let line = `${Math.fround(p[3 * v])} ${Math.fround(p[3 * v + 1])} ${Math.fround(p[3 * v + 2])}`;
       if (colors) line += ` ${colors[3 * v]} ${colors[3 * v + 1]} ${colors[3 * v + 2]}`;
-      for (const [, values] of props) line += ` ${Math.fround(values[v])}`;
+      props.forEach(([, values], k) => (line += ` ${wide[k] ? values[v] : Math.fround(values[v])}`));
       lines.push(line);
     }
     for (let f = 0; f < nF; f++) lines.push(`3 ${t[3 * f]} ${t[3 * f + 1]} ${t[3 * f + 2]}`);
@@ -51,7 +60,7 @@ export function writePly(mesh: Mesh, options: PlyWriteOptions = {}): Uint8Array 
     out.set(body, head.length);
     return out;
   }
-  const vertexBytes = 12 + (colors ? 3 : 0) + 4 * props.length;
+  const vertexBytes = 12 + (colors ? 3 : 0) + wide.reduce((a, w) => a + (w ? 8 : 4), 0);
   const out = new Uint8Array(head.length + nV * vertexBytes + nF * 13);
   out.set(head);
   const view = new DataView(out.buffer);
@@ -67,9 +76,14 @@ export function writePly(mesh: Mesh, options: PlyWriteOptions = {}): Uint8Array 
       out[o + 2] = colors[3 * v + 2];
       o += 3;
     }
-    for (const [, values] of props) {
-      view.setFloat32(o, values[v], true);
-      o += 4;
+    for (let k = 0; k < props.length; k++) {
+      if (wide[k]) {
+        view.setFloat64(o, props[k][1][v], true);
+        o += 8;
+      } else {
+        view.setFloat32(o, props[k][1][v], true);
+        o += 4;
+      }
     }
   }
   for (let f = 0; f < nF; f++) {

@@ -50,6 +50,7 @@ function describeValue(v: unknown): string {
   if (Array.isArray(v)) return 'a list';
   if (typeof v === 'object') return 'a mapping';
   if (typeof v === 'string') return `text "${v.length > 40 ? v.slice(0, 40) + '…' : v}"`;
+  if (typeof v === 'number' && !Number.isFinite(v)) return `${v}, which is not a finite number`;
   return `${typeof v} ${String(v)}`;
 }
 

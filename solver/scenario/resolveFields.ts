@@ -65,8 +65,15 @@ export function resolveFields(ctx: ResolveContext, kin: KineticsPlan, loaded: Lo
   for (const [name, v] of Object.entries(kin.parameterSpec)) if (typeof v === 'number') constants[name] = v;
   const parameters: (number | Float64Array)[] = [];
   for (const [name, v] of Object.entries(kin.parameterSpec)) {
-    const r = typeof v === 'number' ? v : fieldValue(v, ['kinetics', 'parameters', name], constants);
+    const path = ['kinetics', 'parameters', name];
+    const r = typeof v === 'number' ? v : fieldValue(v, path, constants);
     if (r === undefined) { parameters.push(0); continue; }
+    const bad = firstNonFinite(r);
+    if (bad !== undefined) {
+      problems.add(path, typeof r === 'number' ? `must be a finite number, got ${r}` : `is ${r[bad]} at vertex ${bad}: a parameter must be finite everywhere`);
+      parameters.push(0);
+      continue;
+    }
     if (typeof r === 'number') constants[name] = r;
     parameters.push(r);
   }
@@ -94,4 +101,11 @@ export function resolveFields(ctx: ResolveContext, kin: KineticsPlan, loaded: Lo
     diffusion.push(d);
   }
   return { constants, parameters, diffusionSpec, diffusion, fieldValue, vertexDataOf };
+}
+
+/** Index of the first value that is not finite (0 for a number), or undefined. */
+function firstNonFinite(v: number | Float64Array): number | undefined {
+  if (typeof v === 'number') return Number.isFinite(v) ? undefined : 0;
+  for (let i = 0; i < v.length; i++) if (!Number.isFinite(v[i])) return i;
+  return undefined;
 }
