@@ -28,11 +28,11 @@ export function fileErrorWords(e: unknown): string {
 
 /** A write that failed: the file, and the cause in words. */
 export class FileWriteError extends Error {
-  constructor(readonly file: string, override readonly cause: unknown) {
+  constructor(readonly file: string, override readonly cause: unknown, detail = '') {
     const words = fileErrorWords(cause);
     const code = (cause as NodeJS.ErrnoException)?.code;
     const advice = code === 'ENOSPC' || code === 'EDQUOT' ? ': free some space and try again' : code === 'EROFS' || code === 'EACCES' || code === 'EPERM' ? ': write somewhere you may write' : '';
-    super(`cannot write ${file}: ${words}${advice}`);
+    super(`cannot write ${file}: ${words}${advice}${detail}`);
     this.name = 'FileWriteError';
   }
   /** true for a full disk or quota (the run can be resumed once there is space) */

@@ -1,8 +1,12 @@
 import type { ResolvedScenario } from '../scenario/ResolvedScenario.ts';
 import { meshArea } from '../mesh/triangleAreas.ts';
 
-/** Why a run stopped: its end time, a steady state, a blow-up, a folded surface, or an interruption (resumable). */
-export type StopReason = 'end' | 'steady-state' | 'blow-up' | 'degenerate' | 'interrupted';
+/**
+ * Why a run stopped: its end time, a steady state, a blow-up, a folded
+ * surface, an interruption, or a failed write (a full disk); the last two
+ * resume from the last saved state.
+ */
+export type StopReason = 'end' | 'steady-state' | 'blow-up' | 'degenerate' | 'interrupted' | 'failed';
 
 export interface PredictedMode {
   index: number;

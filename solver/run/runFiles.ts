@@ -14,6 +14,9 @@ import { crc32 } from '../io/crc32.ts';
  */
 export const RUN_FILES = { record: 'record.json', metrics: 'metrics.csv', state: 'state.bin', final: 'final.ply', frames: 'frames' } as const;
 
+/** Every file and directory a run writes into its directory (a replaced run's are removed, nothing else). */
+export const RUN_OUTPUT_FILES: readonly string[] = [RUN_FILES.record, RUN_FILES.metrics, RUN_FILES.state, RUN_FILES.final, RUN_FILES.frames, 'final.glb', 'final.obj', 'final.csv'];
+
 export function frameName(index: number): string {
   return `${String(index).padStart(4, '0')}.ply`;
 }

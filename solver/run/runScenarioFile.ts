@@ -1,4 +1,5 @@
-import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
+import { existsSync, readFileSync, rmSync, statSync } from 'node:fs';
+import { ensureDirectory, holdsNoFiles, removeTemporaries } from '../io/fileAccess.ts';
 import { join, resolve } from 'node:path';
 import { parseScenario } from '../scenario/parseScenario.ts';
 import { isSweepFileText } from '../sweep/Sweep.ts';
@@ -15,8 +16,6 @@ import { readTextFile } from '../io/readTextFile.ts';
 import { VERSION } from '../version.ts';
 
 export type { RunOptions, RunOutcome } from './writeRun.ts';
-
-const isDirWithFiles = (dir: string) => existsSync(dir) && statSync(dir).isDirectory() && readdirSync(dir).length > 0;
 
 /** Read, check and resolve a scenario file (meshes and previous runs found relative to it). */
 export function loadScenarioFile(file: string): { text: string; resolved: ResolvedScenario } {
@@ -40,32 +39,37 @@ export function checkScenario(file: string): Record<string, unknown> {
   return { ...r.summary, vertices: r.mesh.positions.length / 3, warnings: r.warnings, meshNotes: r.meshNotes };
 }
 
-/** Start a new run of a scenario file into `options.out`. */
+/**
+ * Start a new run of a scenario file into `options.out`. With `force` over an
+ * existing run, the new run is written beside it and takes its place only once
+ * its first state is written, so a run that cannot start (a bad scenario, a
+ * full disk) never costs the old one.
+ */
 export async function runScenarioFile(file: string, options: RunOptions): Promise<RunOutcome> {
   if (!options.out) throw new UsageError('say where the run goes: --out DIR');
   const out = resolve(options.out);
-  if (isDirWithFiles(out) && !options.force) {
+  if (existsSync(out) && !statSync(out).isDirectory()) throw new UsageError(`--out ${options.out} is a file, not a directory`);
+  const replacing = !holdsNoFiles(out);
+  if (replacing && !options.force) {
     throw new UsageError(`${options.out} already holds files; choose a new --out, add --force to replace it, or continue it with placode run --resume ${options.out}`);
   }
   const t0 = performance.now();
   const { text, resolved } = loadScenarioFile(file);
-  if (options.force && existsSync(out)) {
-    for (const name of [RUN_FILES.record, RUN_FILES.metrics, RUN_FILES.state, RUN_FILES.final, 'final.glb', 'final.obj', 'final.csv']) rmSync(join(out, name), { force: true });
-    rmSync(join(out, RUN_FILES.frames), { recursive: true, force: true });
-  }
-  mkdirSync(join(out, RUN_FILES.frames), { recursive: true });
+  const dir = replacing ? `${out}.new-${process.pid}` : out;
+  if (replacing) rmSync(dir, { recursive: true, force: true });
+  ensureDirectory(join(dir, RUN_FILES.frames), (m) => new UsageError(m));
   const record = newRunRecord(resolved, {
     version: VERSION, node: process.version, platform: `${process.platform}-${process.arch}`, command: options.command ?? [],
     scenarioFile: resolve(file), scenarioText: text, checksum: meshChecksum(resolved.mesh),
   });
-  return writeRun(out, resolved, record, undefined, [], options, t0);
+  return writeRun({ dir, replacing: replacing ? out : undefined }, resolved, record, undefined, [], options, t0);
 }
 
 /** Continue an interrupted run from its saved state; the result is the same as an uninterrupted run's. */
 export async function resumeRun(dir: string, options: RunOptions): Promise<RunOutcome> {
   const out = resolve(dir);
   const record = readRunRecord(dir);
-  if (record.status !== 'running' && record.status !== 'interrupted') {
+  if (record.status !== 'running' && record.status !== 'interrupted' && record.status !== 'failed') {
     throw new UsageError(`${dir} has already finished (${record.stop?.message ?? record.status}); nothing to resume`);
   }
   const t0 = performance.now();
@@ -89,5 +93,6 @@ export async function resumeRun(dir: string, options: RunOptions): Promise<RunOu
   record.frames = record.frames.filter((f) => f.step <= saved.step);
   record.analysis.frames = record.analysis.frames.filter((f) => f.step <= saved.step);
   record.analysis.events = record.analysis.events.filter((e) => e.time <= saved.time);
-  return writeRun(out, resolved, record, saved, rows, options, t0);
+  removeTemporaries(out);
+  return writeRun({ dir: out }, resolved, record, saved, rows, options, t0);
 }

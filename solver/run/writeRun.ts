@@ -1,7 +1,9 @@
 import { join } from 'node:path';
 import type { ResolvedScenario } from '../scenario/ResolvedScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
-import { RUN_FILES, frameName, encodeFrame, stateMetrics, metricsHeader, metricsRow, encodeState, type SavedState } from './runFiles.ts';
+import { FileWriteError, fileErrorWords, removeTemporaries } from '../io/fileAccess.ts';
+import { readdirSync, renameSync, rmSync } from 'node:fs';
+import { RUN_FILES, RUN_OUTPUT_FILES, frameName, encodeFrame, stateMetrics, metricsHeader, metricsRow, encodeState, type SavedState } from './runFiles.ts';
 import type { RunRecord, StopReason } from './RunRecord.ts';
 import { RunEngine, type EngineEvent } from './RunEngine.ts';
 import { PatternTracker } from './PatternTracker.ts';
@@ -41,6 +43,12 @@ export interface RunOutcome {
   message: string;
 }
 
+/** Where a run is written: `dir`; with `replacing`, `dir` is a new directory beside that run, which replaces it once the new run has its first state. */
+export interface RunTarget {
+  dir: string;
+  replacing?: string;
+}
+
 /**
  * Step a resolved scenario with the run engine and write its run directory:
  * at every output a metrics row, the pattern measures, a frame (and the
@@ -50,7 +58,10 @@ export interface RunOutcome {
  * once (the last saved state stays valid). `saved` resumes an interrupted run;
  * `metricRows` are the metrics rows it already wrote.
  */
-export async function writeRun(out: string, r: ResolvedScenario, record: RunRecord, saved: SavedState | undefined, metricRows: string[], options: RunOptions, t0: number): Promise<RunOutcome> {
+export async function writeRun(target: RunTarget, r: ResolvedScenario, record: RunRecord, saved: SavedState | undefined, metricRows: string[], options: RunOptions, t0: number): Promise<RunOutcome> {
+  /** where files go now: the run directory, or (replacing a run) a new one beside it until its first state is written */
+  let out = target.dir;
+  const final = target.replacing ?? target.dir;
   const log = options.log ?? ((line: string) => process.stderr.write(line + '\n'));
   const nS = r.species.length;
   const { dt, steps: lastStep } = r;
@@ -75,7 +86,9 @@ export async function writeRun(out: string, r: ResolvedScenario, record: RunReco
     writeFileAtomic(join(out, RUN_FILES.record), JSON.stringify(record, null, 2) + '\n', true);
   };
   const scenarioChecksum = textChecksum(record.scenarioText);
+  let lastSaved = saved?.step ?? 0;
   const saveState = (state: Float64Array, atStep: number) => {
+    lastSaved = atStep;
     writeFileAtomic(join(out, RUN_FILES.state), encodeState({ step: atStep, time: atStep * dt, nextFrame, species: [...r.species], vertexCount: engine.vertexCount, meshChecksum: record.mesh.checksum, scenarioChecksum, dt, state, ...engine.savedParts() }), true);
   };
   const comments = (atStep: number) => [`placode ${VERSION} run ${r.name}`, `time ${atStep * dt} step ${atStep}`];
@@ -135,7 +148,7 @@ export async function writeRun(out: string, r: ResolvedScenario, record: RunReco
     writeRecord();
     progress.stop();
     log(message);
-    return { dir: out, reason, time: atStep * dt, step: atStep, message };
+    return { dir: final, reason, time: atStep * dt, step: atStep, message };
   };
 
   let interrupted = false;
@@ -147,7 +160,7 @@ export async function writeRun(out: string, r: ResolvedScenario, record: RunReco
   process.on('SIGTERM', onSignal);
   for (const w of r.warnings) log(`warning: ${w}`);
   for (const note of r.meshNotes) log(`mesh: ${note}`);
-  log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${engine.vertexCount} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''} → ${out}`);
+  log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${engine.vertexCount} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''} → ${final}`);
   const progress = makeProgress(options.progress, log, engine.time, lastStep * dt);
   try {
     if (!saved) {
@@ -155,6 +168,11 @@ export async function writeRun(out: string, r: ResolvedScenario, record: RunReco
       await writeFormats(0, frameName(0).replace('.ply', ''));
     }
     writeRecord();
+    if (target.replacing) {
+      // the new run has its first state: only now does it take the old run's place
+      swapDirectories(target.dir, target.replacing);
+      out = target.replacing;
+    }
     options.onStarted?.();
     const startStep = engine.step;
     const started = performance.now();
@@ -178,20 +196,55 @@ export async function writeRun(out: string, r: ResolvedScenario, record: RunReco
         if (ev.finish) {
           if (ev.finish.reason === 'steady-state') record.analysis.timeToSteadyState = ev.step * dt;
           await writeFormats(ev.step, 'final');
-          return finish(ev.finish.reason, ev.step, `${ev.finish.message}. Outputs in ${out}`);
+          return finish(ev.finish.reason, ev.step, `${ev.finish.message}. Outputs in ${final}`);
         }
       }
       if (interrupted) {
         if (ev.kind !== 'output') saveState(engine.state, engine.step);
-        return finish('interrupted', engine.step, `interrupted at t=${engine.time.toPrecision(6)} (step ${engine.step} of ${lastStep}); continue with: placode run --resume ${out}`);
+        return finish('interrupted', engine.step, `interrupted at t=${engine.time.toPrecision(6)} (step ${engine.step} of ${lastStep}); continue with: placode run --resume ${final}`);
       }
     }
     // resumed at the end (an interruption landed on the last step): the final state is the saved one
     await writeFormats(engine.step, 'final');
-    return finish('end', engine.step, `finished at t=${engine.time.toPrecision(6)} after ${engine.step} steps. Outputs in ${out}`);
+    return finish('end', engine.step, `finished at t=${engine.time.toPrecision(6)} after ${engine.step} steps. Outputs in ${final}`);
+  } catch (e) {
+    if (!(e instanceof FileWriteError)) throw e;
+    progress.stop();
+    if (out !== final) {
+      // replacing a run: the new one never got its first state; the old one stays as it was
+      rmSync(out, { recursive: true, force: true });
+      throw new FileWriteError(e.file, e.cause, `; ${final} is left as it was`);
+    }
+    removeTemporaries(out);
+    const message = `cannot write ${e.file}: ${fileErrorWords(e.cause)}. The run stopped at t=${engine.time.toPrecision(6)} (step ${engine.step}); its last saved state is at t=${(lastSaved * dt).toPrecision(6)}. ${e.diskFull ? 'Free some space, then continue' : 'Continue'} it with: placode run --resume ${final}`;
+    record.status = 'failed';
+    record.stop = { reason: 'failed', time: lastSaved * dt, step: lastSaved, message };
+    try {
+      writeRecord();
+    } catch {
+      // the record cannot be written either: it still says running, and resume works from state.bin all the same
+    }
+    log(message);
+    return { dir: final, reason: 'failed', time: lastSaved * dt, step: lastSaved, message };
   } finally {
     process.off('SIGINT', onSignal);
     process.off('SIGTERM', onSignal);
     progress.stop();
+  }
+}
+
+/**
+ * Put the new run written in `fresh` in the place of the run in `old`: the old
+ * run's own files (record, metrics, state, final states, frames) are removed,
+ * the new ones renamed in (no copying, no space needed), anything else a user
+ * keeps in the directory is left alone.
+ */
+function swapDirectories(fresh: string, old: string): void {
+  try {
+    for (const name of [...RUN_OUTPUT_FILES, ...readdirSync(fresh)]) rmSync(join(old, name), { recursive: true, force: true });
+    for (const name of readdirSync(fresh)) renameSync(join(fresh, name), join(old, name));
+    rmSync(fresh, { recursive: true, force: true });
+  } catch (e) {
+    throw new FileWriteError(old, e, ` (the new run is in ${fresh})`);
   }
 }

@@ -43,6 +43,7 @@ export function runStatus(dir: string, entry: ManifestEntry, read?: { record: Ru
       return { state: 'done', message: record.stop?.message };
     case 'blow-up':
     case 'degenerate':
+    case 'failed':
       return { state: 'failed', message: record.stop?.message };
     case 'interrupted':
       return { state: 'interrupted', message: record.stop?.message };

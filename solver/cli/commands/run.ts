@@ -24,6 +24,6 @@ export const registerRun: RegisterCommand = (program, ctx) => {
       const outcome = o.resume
         ? await resumeRun(o.resume, { progress: o.progress, command: ctx.argv })
         : await runScenarioFile(file!, { out: o.out, force: o.force, progress: o.progress, command: ctx.argv });
-      ctx.setExitCode(outcome.reason === 'blow-up' || outcome.reason === 'degenerate' ? 3 : outcome.reason === 'interrupted' ? 130 : 0);
+      ctx.setExitCode(outcome.reason === 'blow-up' || outcome.reason === 'degenerate' ? 3 : outcome.reason === 'interrupted' ? 130 : outcome.reason === 'failed' ? 1 : 0);
     });
 };
