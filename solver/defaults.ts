@@ -26,6 +26,10 @@ export const FORMULA_MAX_LENGTH = 4000;
 export const FORMULA_MAX_NESTING = 64;
 
 // ---- time stepping
+/** The most steps a run may take: more could not finish (at a million steps a second, 12 days). */
+export const MAX_RUN_STEPS = 1e12;
+/** A run whose estimated wall-clock time exceeds this stops after its first chunk unless confirmed (`--yes`). */
+export const LONG_RUN_SECONDS = 24 * 3600;
 /** Output interval when the scenario gives none: end / OUTPUTS_PER_RUN. */
 export const OUTPUTS_PER_RUN = 20;
 /** The explicit scheme's default step, as a fraction of the positivity bound. */

@@ -8,11 +8,14 @@ export interface Progress {
   stop(): void;
 }
 
-function formatSeconds(s: number): string {
+/** A duration for people: seconds, minutes, hours, days or years. */
+export function formatDuration(s: number): string {
   if (!Number.isFinite(s)) return '?';
   if (s < 90) return `${s.toFixed(0)} s`;
   if (s < 5400) return `${(s / 60).toFixed(1)} min`;
-  return `${(s / 3600).toFixed(1)} h`;
+  if (s < 2 * 86400) return `${(s / 3600).toFixed(1)} h`;
+  if (s < 2 * 365.25 * 86400) return `${(s / 86400).toFixed(1)} days`;
+  return `${(s / (365.25 * 86400)).toPrecision(3)} years`;
 }
 
 /** The progress display a --progress option asks for: auto is a bar on a terminal, plain lines otherwise. */
@@ -51,7 +54,7 @@ export function makeProgress(option: ProgressOption | undefined, log: (line: str
       last = now;
       const elapsed = (now - started) / 1000;
       const eta = time > start ? (elapsed * (end - time)) / (time - start) : Infinity;
-      log(`  t=${time.toPrecision(6)}/${end} (${((100 * time) / end).toFixed(1)}%)  ${rate.toFixed(0)} steps/s  ETA ${formatSeconds(eta)}`);
+      log(`  t=${time.toPrecision(6)}/${end} (${((100 * time) / end).toFixed(1)}%)  ${rate.toFixed(0)} steps/s  ETA ${formatDuration(eta)}`);
     },
     stop() {},
   };

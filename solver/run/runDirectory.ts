@@ -5,6 +5,7 @@ import type { RunRecord } from './RunRecord.ts';
 import { loadSnapshot } from './runFrames.ts';
 import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
 import { UsageError } from '../UsageError.ts';
+import { writeFileAtomic } from '../io/meshFiles.ts';
 
 /**
  * A run directory's record.json: undefined when there is none, null when it
@@ -45,4 +46,23 @@ export function loadRunState(dir: string): { species: string[]; values: Record<s
   if (!existsSync(ply)) throw new Error(`"${dir}" holds neither ${RUN_FILES.state} nor ${RUN_FILES.final}: is it a finished run?`);
   const values = loadSnapshot(ply).fields;
   return { species: Object.keys(values), values };
+}
+
+/**
+ * Mark a run that is stopped without its own word (a second Ctrl-C, a killed
+ * worker) as interrupted, so that its record says what happened; it resumes
+ * from its last saved state. A record that is not "running" is left alone.
+ */
+export function markInterrupted(dir: string, why: string): void {
+  const record = peekRunRecord(dir);
+  if (!record || record.status !== 'running') return;
+  const saved = record.analysis.frames[record.analysis.frames.length - 1]; // the last output, where the state was saved
+  record.status = 'interrupted';
+  record.stop = { reason: 'interrupted', time: saved?.time ?? 0, step: saved?.step ?? 0, message: `${why}; continue with: placode run --resume ${dir}` };
+  record.updated = new Date().toISOString();
+  try {
+    writeFileAtomic(join(dir, RUN_FILES.record), JSON.stringify(record, null, 2) + '\n', true);
+  } catch {
+    // nothing more can be done on the way out; the run still resumes from state.bin
+  }
 }

@@ -7,14 +7,15 @@ import { RUN_FILES, RUN_OUTPUT_FILES, frameName, encodeFrame, stateMetrics, metr
 import type { RunRecord, StopReason } from './RunRecord.ts';
 import { RunEngine, type EngineEvent } from './RunEngine.ts';
 import { PatternTracker } from './PatternTracker.ts';
-import { makeProgress, type ProgressOption } from './progress.ts';
+import { makeProgress, progressMode, type ProgressOption } from './progress.ts';
 import { meshArea } from '../mesh/triangleAreas.ts';
 import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
 import { encodeSnapshot } from '../io/encodeSnapshot.ts';
 import { colorizeField } from '../io/colormap.ts';
 import { VERSION } from '../version.ts';
 import { textChecksum } from './meshChecksum.ts';
-import { RUN_CHUNK_MS } from '../defaults.ts';
+import { LONG_RUN_SECONDS, RUN_CHUNK_MS } from '../defaults.ts';
+import { formatDuration } from './progress.ts';
 
 export interface RunOptions {
   /** run directory to write (new run) */
@@ -27,6 +28,8 @@ export interface RunOptions {
   interruptAfterSteps?: number;
   /** asked between chunks of steps: true stops the run as if interrupted (state saved, resumable) */
   shouldStop?: () => boolean;
+  /** run however long the first chunk's rate says the run will take (otherwise a run estimated above LONG_RUN_SECONDS stops, resumable, and says so) */
+  yes?: boolean;
   /** called once the run's record and first state are written, before the first step */
   onStarted?: () => void;
   /** the command line, for the record */
@@ -153,7 +156,17 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
 
   let interrupted = false;
   const onSignal = () => {
-    if (interrupted) process.exit(130);
+    if (interrupted) {
+      // a second Ctrl-C quits at once: the record says so, and the run resumes from its last saved state
+      record.status = 'interrupted';
+      record.stop = { reason: 'interrupted', time: lastSaved * dt, step: lastSaved, message: `stopped at once by a second Ctrl-C; continue from its last saved state (t=${(lastSaved * dt).toPrecision(6)}) with: placode run --resume ${final}` };
+      try {
+        writeRecord();
+      } catch {
+        // quitting all the same: state.bin is what resume needs
+      }
+      process.exit(130);
+    }
     interrupted = true;
   };
   process.on('SIGINT', onSignal);
@@ -176,6 +189,7 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
     options.onStarted?.();
     const startStep = engine.step;
     const started = performance.now();
+    let checkedLength = false;
     while (!engine.finished) {
       const chunkStart = performance.now();
       const limit = options.interruptAfterSteps === undefined ? undefined : options.interruptAfterSteps - (engine.step - startStep);
@@ -187,6 +201,17 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
         return finish(ev.reason, ev.step, `${ev.message}. ${where}${ev.advice ? ` ${ev.advice}` : ''}`);
       }
       if (options.shouldStop?.()) interrupted = true;
+      if (!checkedLength && !engine.finished) {
+        // the first chunk's rate says how long the whole run takes: a very long one waits for a yes
+        checkedLength = true;
+        const rate = (engine.step - startStep) / Math.max(1e-9, (performance.now() - started) / 1000);
+        const eta = (lastStep - engine.step) / rate;
+        if (eta > LONG_RUN_SECONDS && !options.yes) {
+          if (ev.kind !== 'output') saveState(engine.state, engine.step);
+          return finish('interrupted', engine.step, `at ${rate.toPrecision(3)} steps/s this run needs about ${formatDuration(eta)} (${lastStep} steps): it was stopped at once, its state saved. Shorten time.end or lengthen time.step, or run it anyway with: placode run --resume ${final} --yes`);
+        }
+        if (progressMode(options.progress) !== 'none') log(`  about ${formatDuration(eta)} to go at ${rate.toPrecision(3)} steps/s`);
+      }
       if (options.interruptAfterSteps !== undefined && engine.step - startStep >= options.interruptAfterSteps) interrupted = true;
       progress.update(engine.time, (engine.step - startStep) / Math.max(1e-9, (performance.now() - started) / 1000));
       await new Promise((res) => setImmediate(res));

@@ -121,7 +121,13 @@ export function parseCheckedYaml(text: string, file: string, check: ValidateFunc
       }),
     );
   }
-  const data: unknown = doc.toJS();
+  let data: unknown;
+  try {
+    data = doc.toJS({ maxAliasCount: 100 });
+  } catch (e) {
+    // YAML aliases that expand to an exponential amount of data (an "alias bomb")
+    throw new ScenarioError(file, [{ path: '', message: `not usable YAML: ${(e as Error).message.replace('indicates a resource exhaustion attack', '(aliases that expand without bound)')}; write the values out instead of repeating anchors` }]);
+  }
   const locate = locator(doc, lines);
   if (data === null || typeof data !== 'object' || Array.isArray(data)) {
     throw new ScenarioError(file, [{ path: '', message: `${what}, got ${describeValue(data)}` }]);

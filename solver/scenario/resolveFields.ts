@@ -4,6 +4,7 @@ import type { LoadedMesh } from './ResolvedScenario.ts';
 import type { KineticsPlan } from './resolveKinetics.ts';
 import { FormulaError } from '../kinetics/FormulaError.ts';
 import { evaluateSurfaceFormula } from '../kinetics/surfaceField.ts';
+import { parseFormula } from '../kinetics/parseFormula.ts';
 
 type Path = (string | number)[];
 
@@ -20,6 +21,32 @@ export interface FieldPlan {
   fieldValue(value: FieldValue, path: Path, constants: Record<string, number>): number | Float64Array | undefined;
   /** the mesh's per-vertex data of that name, or undefined with a problem naming those it has */
   vertexDataOf(name: string, path: Path): Float64Array | undefined;
+}
+
+/**
+ * The formulas of parameter, diffusion and initial-value fields, checked for
+ * what needs no mesh: that they parse and name only x, y, z (t for growth) and
+ * the kinetics' parameters. Resolution on the mesh evaluates them later.
+ */
+export function checkFieldFormulas(ctx: ResolveContext, kin: KineticsPlan): void {
+  const sc = ctx.source.scenario;
+  const names = Object.keys(kin.parameterSpec);
+  const space = new Set(['x', 'y', 'z', ...names]);
+  const check = (text: unknown, path: Path, symbols = space) => {
+    if (typeof text !== 'string' || text === 'steady') return;
+    try {
+      parseFormula(text, symbols);
+    } catch (e) {
+      if (!(e instanceof FormulaError)) throw e;
+      ctx.problems.add(path, e.message);
+    }
+  };
+  for (const [name, v] of Object.entries(kin.parameterSpec)) check(v, ['kinetics', 'parameters', name], new Set(['x', 'y', 'z', ...names.filter((n) => n !== name)]));
+  for (const [name, v] of Object.entries(sc.diffusion ?? {})) check(v, ['diffusion', name]);
+  const values = sc.initial?.values;
+  if (values && typeof values === 'object') for (const [name, v] of Object.entries(values)) check(v, ['initial', 'values', name]);
+  const timed = new Set([...space, 't']);
+  for (const key of ['speed', 'expansion'] as const) check(sc.growth?.[key], ['growth', key], timed);
 }
 
 /** Diffusion keys that name no species (checked before the mesh is built). */

@@ -1,8 +1,9 @@
 import type { ScenarioSource } from './parseScenario.ts';
+import type { ScenarioProblem } from './ScenarioError.ts';
 import { Problems, type ResolveContext } from './Problems.ts';
 import type { LoadedMesh, ResolvedScenario, ScenarioEnvironment } from './ResolvedScenario.ts';
 import { resolveKinetics } from './resolveKinetics.ts';
-import { checkDiffusionNames, resolveFields } from './resolveFields.ts';
+import { checkDiffusionNames, checkFieldFormulas, resolveFields } from './resolveFields.ts';
 import { resolveInitial } from './resolveInitial.ts';
 import { checkScheme, resolveTime } from './resolveTime.ts';
 import { resolvePainting, resolveOutputPlan } from './resolveOutput.ts';
@@ -29,10 +30,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   if (sc.sweep) warnings.push(`the sweep section is not used by a single run: the scenario runs as written; expand the sweep with placode sweep plan ${file} --out DIR`);
 
   // ---- what needs no mesh (cheap, and most mistakes are here)
-  const kin = resolveKinetics(ctx);
-  checkScheme(ctx);
-  const painting = resolvePainting(ctx, kin);
-  checkDiffusionNames(ctx, kin.species);
+  const { kin, painting } = resolveWithoutMesh(ctx);
   problems.fail(file);
 
   // ---- the mesh, and the fields on it
@@ -97,6 +95,28 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     warnings,
     summary,
   };
+}
+
+/** The sections that need no mesh: kinetics (formulas compiled), scheme, painting, diffusion names. */
+function resolveWithoutMesh(ctx: ResolveContext) {
+  const kin = resolveKinetics(ctx);
+  checkScheme(ctx);
+  const painting = resolvePainting(ctx, kin);
+  checkDiffusionNames(ctx, kin.species);
+  checkFieldFormulas(ctx, kin);
+  return { kin, painting };
+}
+
+/**
+ * Every problem of a scenario that can be found without building its mesh —
+ * the kinetics and its formulas, the scheme, the painting, the diffusion
+ * names — at a fraction of a full resolution's cost (a sweep checks every
+ * point so).
+ */
+export function problemsWithoutMesh(source: ScenarioSource, file: string): ScenarioProblem[] {
+  const ctx: ResolveContext = { source, file, problems: new Problems(source), warnings: [] };
+  resolveWithoutMesh(ctx);
+  return ctx.problems.list;
 }
 
 /** The scenario's mesh from the environment: a built-in shape or a file, repaired and checked. */

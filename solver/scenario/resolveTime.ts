@@ -7,7 +7,7 @@ import { systemExplicitLimit, type ExplicitStepLimit } from '../integrate/explic
 import { cotanStiffness } from '../fem/cotanStiffness.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
 import { smallMatrixEigenvalues } from '../analysis/smallMatrixEigenvalues.ts';
-import { AUTO_CHOLESKY_STIFFNESS, AUTO_CHOLESKY_VERTICES, CG_TOLERANCE, EXPLICIT_STEP_FRACTION, OUTPUTS_PER_RUN } from '../defaults.ts';
+import { AUTO_CHOLESKY_STIFFNESS, AUTO_CHOLESKY_VERTICES, CG_TOLERANCE, EXPLICIT_STEP_FRACTION, MAX_RUN_STEPS, OUTPUTS_PER_RUN } from '../defaults.ts';
 
 export interface TimePlan {
   scheme: 'imex' | 'explicit';
@@ -80,6 +80,10 @@ export function resolveTime(ctx: ResolveContext, kin: KineticsPlan, system: Reac
     } else solverReason = `auto: dt·D·λmax = ${stiffnessRatio.toPrecision(3)}, CG converges in few iterations`;
   }
   const steps = Math.max(1, Math.ceil(end / step - 1e-9));
+  if (!(steps <= MAX_RUN_STEPS)) {
+    problems.add(['time', sc.time.step !== undefined ? 'step' : 'end'], `time.end ${end} / time.step ${step} is ${steps.toExponential(2)} steps, more than the ${MAX_RUN_STEPS.toExponential(0)} a run may take: shorten time.end or lengthen time.step`);
+    problems.fail(ctx.file);
+  }
   if (Math.abs(steps * step - end) > 1e-9 * end) warnings.push(`time.end ${end} is not a whole number of steps of ${step}; the run ends at ${steps * step}`);
   // the reactions are stepped explicitly in both schemes: forward Euler is stable at the steady
   // state only if |1 + dt·λ| ≤ 1 for every eigenvalue λ of its Jacobian

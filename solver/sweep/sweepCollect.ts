@@ -54,7 +54,7 @@ export function collectSweep(dirArg: string, o: CollectOptions = {}): { csv: str
     const run = join(dir, e.run);
     const row: Record<string, unknown> = { index: e.index, id: e.id, state: status.state };
     for (const p of paths) row[p] = e.values[p];
-    if (status.state === 'failed') row.message = status.message?.split('\n')[0];
+    if (status.state === 'failed') row.message = status.message?.trim().replace(/\s*\n\s*/g, ' | '); // the whole message, on one line
     if (record) {
       row.stop = record.stop?.reason;
       row.time = record.stop?.time;

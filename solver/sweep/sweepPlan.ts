@@ -6,7 +6,7 @@ import type { Scenario } from '../scenario/Scenario.ts';
 import { SWEEP_FILE_SCHEMA, isSweepFileText, type SweepSpec } from './Sweep.ts';
 import { ScenarioError, type ScenarioProblem } from '../scenario/ScenarioError.ts';
 import { expandSweep, applySweepPoint, sweepAxisProblems, pointLabel, varyingPaths } from './expandSweep.ts';
-import { resolveScenario } from '../scenario/resolveScenario.ts';
+import { resolveScenario, problemsWithoutMesh } from '../scenario/resolveScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { nodeScenarioEnvironment } from '../scenario/nodeScenarioEnvironment.ts';
 import { UsageError } from '../UsageError.ts';
@@ -63,6 +63,15 @@ function checkAxes(spec: SweepSpec, file: string, locate: (path: string[]) => { 
   if (problems.length) throw new ScenarioError(file, problems);
 }
 
+/** The files a scenario names (mesh, previous run, keyframe stages), with their paths in the scenario. */
+function sweepFilePaths(sc: Scenario): [string, string][] {
+  const out: [string, string][] = [];
+  if (sc.mesh?.file) out.push(['mesh.file', sc.mesh.file]);
+  if (sc.initial?.from) out.push(['initial.from', sc.initial.from]);
+  (sc.growth?.keyframes ?? []).forEach((k, j) => { if (k.file) out.push([`growth.keyframes[${j}].file`, k.file]); });
+  return out;
+}
+
 /** The scenario paths that name files, relative to the scenario: re-pointed when a scenario is copied elsewhere. */
 function repointFiles(sc: Scenario, from: string, to: string): void {
   const move = (p: string) => (isAbsolute(p) ? p : relative(to, resolve(from, p)).split('\\').join('/'));
@@ -116,6 +125,11 @@ export function planSweep(file: string, options: PlanOptions): { dir: string; en
       }
       continue;
     }
+    // what can be checked without the mesh, at every point: formulas, models, painting; and that its files exist
+    const pointProblems = problemsWithoutMesh({ scenario: sc, locate: () => undefined }, file);
+    for (const [path, f] of sweepFilePaths(sc)) if (!existsSync(resolve(scenariosDir, f))) pointProblems.push({ path, message: `no such file ${resolve(scenariosDir, f)}` });
+    for (const p of pointProblems) if (problems.length < 12) problems.push({ path: `point ${i} (${label}) ${p.path}`, message: p.message });
+    if (pointProblems.length) continue;
     const json = JSON.stringify(sc, null, 2) + '\n';
     const id = createHash('sha256').update(json).digest('hex').slice(0, 12);
     if (seen.has(id)) {

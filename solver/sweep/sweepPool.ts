@@ -3,6 +3,8 @@ import { availableParallelism } from 'node:os';
 import cliProgress from 'cli-progress';
 import { readManifest } from './sweepPlan.ts';
 import { runStatus, markFailed, type TaskOutcome } from './sweepTask.ts';
+import { markInterrupted } from '../run/runDirectory.ts';
+import { join } from 'node:path';
 import { progressMode } from '../run/progress.ts';
 
 /** The worker thread's script: compiled (dist/) next to this file, or the sources through the TypeScript loader. */
@@ -25,6 +27,8 @@ export interface PoolOutcome {
   total: number;
   /** finished before this call */
   skipped: number;
+  /** of those, the runs that had failed (they are not run again without retryFailed) */
+  failedBefore: number;
   done: number;
   failed: { index: number; id: string; message: string }[];
   /** left unfinished by an interruption */
@@ -46,14 +50,16 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
   const log = options.log ?? ((s: string) => process.stderr.write(s + '\n'));
   const t0 = performance.now();
   const todo: number[] = [];
-  let skipped = 0;
+  let skipped = 0, failedBefore = 0;
   for (const e of entries) {
     const s = runStatus(dir, e).state;
-    if (s === 'done' || (s === 'failed' && !options.retryFailed)) skipped++;
-    else todo.push(e.index);
+    if (s === 'done' || (s === 'failed' && !options.retryFailed)) {
+      skipped++;
+      if (s === 'failed') failedBefore++;
+    } else todo.push(e.index);
   }
   const workers = Math.max(1, Math.min(options.workers ?? availableParallelism(), todo.length || 1));
-  const outcome: PoolOutcome = { total: entries.length, skipped, done: 0, failed: [], unfinished: 0, interrupted: false, seconds: 0, workers };
+  const outcome: PoolOutcome = { total: entries.length, skipped, failedBefore, done: 0, failed: [], unfinished: 0, interrupted: false, seconds: 0, workers };
   if (!todo.length) {
     log(`all ${entries.length} runs of ${dirArg} are finished (${skipped} skipped)${options.retryFailed ? '' : '; --retry-failed runs failed ones again'}`);
     return outcome;
@@ -78,6 +84,8 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
     signals++;
     if (signals > 1) {
       for (const w of pool) void w.terminate();
+      // the runs stopped mid-chunk resume from their last saved state: say so in their records
+      for (const index of running) markInterrupted(join(dir, entries[index].run), 'stopped at once by a second Ctrl-C; it continues from its last saved state');
       process.exit(130);
     }
     log('stopping: every running run saves its state (Ctrl-C again to quit at once)');
@@ -91,7 +99,7 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
     else if (o.state === 'failed') outcome.failed.push({ index: o.index, id: o.id, message: o.message });
     else outcome.unfinished++;
     bar?.update(finished, { failed: outcome.failed.length });
-    if (mode === 'lines') log(`  [${finished}/${todo.length}] run ${o.index} (${o.id}) ${o.state}${o.state === 'failed' ? `: ${o.message.split('\n')[0]}` : ''}`);
+    if (mode === 'lines') log(`  [${finished}/${todo.length}] run ${o.index} (${o.id}) ${o.state}${o.state === 'failed' ? `: ${o.message}` : ''}`);
     running.delete(o.index);
     if (options.stopWhen?.({ finished, running: running.size })) stopAll();
   };

@@ -105,8 +105,8 @@ export async function runSweepTask(dirArg: string, index: number, options: TaskO
   try {
     const resumable = (before.state === 'interrupted' || before.state === 'running') && existsSync(join(run, RUN_FILES.state));
     outcome = resumable
-      ? await resumeRun(run, { progress: 'none', log, shouldStop: options.shouldStop, onStarted: options.onStarted, command: ['sweep', 'task', dir, '--index', String(index)] })
-      : await runScenarioFile(join(dir, entry.scenario), { out: run, force: true, progress: 'none', log, shouldStop: options.shouldStop, onStarted: options.onStarted, command: ['sweep', 'task', dir, '--index', String(index)] });
+      ? await resumeRun(run, { progress: 'none', yes: true, log, shouldStop: options.shouldStop, onStarted: options.onStarted, command: ['sweep', 'task', dir, '--index', String(index)] })
+      : await runScenarioFile(join(dir, entry.scenario), { out: run, force: true, progress: 'none', yes: true, log, shouldStop: options.shouldStop, onStarted: options.onStarted, command: ['sweep', 'task', dir, '--index', String(index)] });
   } catch (e) {
     const message = (e as Error).message;
     log(`failed: ${message}`);

@@ -29,27 +29,32 @@ const RESULTS = ['state.bin', 'final.ply', 'metrics.csv', 'frames/0003.ply'];
 describe('placode sweep run (local worker pool)', () => {
   it('runs every point on two workers, bit for bit as sequential runs; a failing point is recorded and the others go on', async () => {
     write('base.yaml', BASE);
-    // a formula with an unknown name is refused when its run resolves the scenario (plan time resolves point 0 only)
-    const sweep = write('pool.yaml', 'scenario: base.yaml\nvary:\n  kinetics.parameters.F: [0.03, 0.04, "0.03 + bogus"]\n  kinetics.parameters.k: [0.055, 0.062]\n');
+    // a mesh file that exists but is broken is found when its run reads it (plan time checks every point's formulas
+    // and that its files exist, and reads only point 0's mesh)
+    write('broken.ply', 'ply\nformat ascii 1.0\nelement vertex 3\nproperty float x\nproperty float y\nproperty float z\nelement face 1\nproperty list uchar int vertex_indices\nend_header\n0 0 0\n1 0 0\n0 1 0\n3 0 1 9\n');
+    const sweep = write('pool.yaml', 'scenario: base.yaml\nvary:\n  mesh: [{shape: sphere, params: {radius: 0.25}, vertices: 400}, {shape: sphere, params: {radius: 0.25}, vertices: 420}, {file: broken.ply}]\n  kinetics.parameters.k: [0.055, 0.062]\n');
     const out = temp.path('pool');
     const { entries } = planSweep(sweep, { out, log: () => {} });
     const r = await runSweepLocal(out, { workers: 2, progress: 'none', log: () => {} });
     expect(r).toMatchObject({ total: 6, done: 4, skipped: 0, unfinished: 0, interrupted: false, workers: 2 });
     expect(r.failed.map((f) => f.index)).toEqual([4, 5]);
-    expect(r.failed[0].message).toMatch(/kinetics\.parameters\.F/);
-    expect(JSON.parse(readFileSync(join(out, entries[4].run, 'failure.json'), 'utf8')).message).toMatch(/bogus/);
+    expect(r.failed[0].message).toMatch(/mesh\.file: .*broken\.ply: face 0 uses vertex 9/);
+    expect(JSON.parse(readFileSync(join(out, entries[4].run, 'failure.json'), 'utf8')).message).toMatch(/broken\.ply/);
     for (const e of entries.slice(0, 4)) {
       const seq = temp.path(`seq-${e.id}`);
       const o = await runScenarioFile(join(out, e.scenario), { out: seq, progress: 'none', log: () => {} });
       expect(o.reason).toBe('end');
       for (const f of RESULTS) expect(readFileSync(join(out, e.run, f)).equals(readFileSync(join(seq, f))), `${e.label} ${f}`).toBe(true);
     }
-    // a second call skips what is finished, failed runs included
+    // a second call skips what is finished, failed runs included, and still says that runs failed (exit 1)
     const again = await runSweepLocal(out, { workers: 2, progress: 'none', log: () => {} });
-    expect(again).toMatchObject({ done: 0, skipped: 6, failed: [] });
+    expect(again).toMatchObject({ done: 0, skipped: 6, failedBefore: 2, failed: [] });
+    const rerun = await run('sweep', 'run', out, '--progress', 'none');
+    expect(rerun.code).toBe(1);
+    expect(rerun.out).toMatch(/2 run\(s\) failed in an earlier call/);
     const status = await run('sweep', 'status', out);
     expect(status.out).toMatch(/6 runs — 4 done, 2 failed, 0 running, 0 interrupted, 0 pending/);
-    expect(status.out).toMatch(/failed 4 \(F=0\.03 \+ bogus k=0\.055\)/);
+    expect(status.out).toMatch(/failed 4 \(.*k=0\.055\): [\s\S]*broken\.ply: face 0 uses vertex 9/); // the whole message, not its first line
   });
 
   it('an interrupted sweep resumes where it stopped, and ends with the same results as an uninterrupted one', async () => {
@@ -83,19 +88,25 @@ describe('placode sweep collect', () => {
     const r = await run('sweep', 'collect', out, '--thumbnail', '100');
     expect(r.code, r.err).toBe(0);
     const lines = readFileSync(join(out, 'sweep.csv'), 'utf8').trim().split('\n');
-    expect(lines.length).toBe(7);
-    const header = lines[0].split(',');
-    for (const c of ['index', 'id', 'state', 'kinetics.parameters.F', 'kinetics.parameters.k', 'stop', 'band_low', 'predicted_mode', 'patches', 'final_v_mean']) expect(header).toContain(c);
-    const rows = lines.slice(1).map((l) => Object.fromEntries(l.split(',').map((v, k) => [header[k], v])));
+    expect(lines.length).toBe(7); // a failure's message of several lines stays on its row
+    const header = csvFields(lines[0]);
+    for (const c of ['index', 'id', 'state', 'mesh', 'kinetics.parameters.k', 'message', 'stop', 'band_low', 'predicted_mode', 'patches', 'final_v_mean']) expect(header).toContain(c);
+    const rows = lines.slice(1).map((l) => Object.fromEntries(csvFields(l).map((v, k) => [header[k], v])));
     expect(rows.map((x) => x.state)).toEqual(['done', 'done', 'done', 'done', 'failed', 'failed']);
-    expect(rows[0]['kinetics.parameters.F']).toBe('0.03');
+    expect(JSON.parse(rows[0].mesh)).toEqual({ shape: 'sphere', params: { radius: 0.25 }, vertices: 400 });
+    expect(rows[4].message).toMatch(/1 problem \| line 4:13 +mesh\.file: .*broken\.ply: face 0 uses vertex 9/);
     expect(rows[0].stop).toBe('end');
     expect(Number(rows[0].final_time)).toBe(60);
     const png = PNG.sync.read(readFileSync(join(out, 'sheet.png')));
     expect(png.width).toBe(2 * 100 + 150); // k across: 2 columns
-    expect(png.height).toBe(3 * (100 + 24) + 60); // F down: 3 rows
+    expect(png.height).toBe(3 * (100 + 24) + 60); // the meshes down: 3 rows
   });
 });
+
+/** The fields of one CSV line (RFC 4180: quoted fields may hold commas and doubled quotes). */
+function csvFields(line: string): string[] {
+  return [...line.matchAll(/(?:^|,)(?:"((?:[^"]|"")*)"|([^,]*))/g)].map((m) => (m[1] !== undefined ? m[1].replace(/""/g, '"') : m[2]));
+}
 
 /** Is a Slurm controller answering here? */
 function slurmUp(): boolean {

@@ -139,6 +139,9 @@ vary:
       ['scenario: base.yaml\nvary:\n  kinetics.model.F: [1]\n', /kinetics\.model is "gray-scott"/],
       ['scenario: missing.yaml\nvary:\n  time.end: [10]\n', /missing\.yaml: no such scenario file/],
       ['scenario: base.yaml\nvaryy:\n  time.end: [10]\n', /unknown key \(did you mean "vary"\?\)/],
+      // every point's formulas are checked, not only the first's, and every point's files must exist
+      ['scenario: base.yaml\nvary:\n  kinetics.parameters.F: [0.03, "0.03 + bogus"]\n', /point 1 \(F=0\.03 \+ bogus\) kinetics\.parameters\.F: .*unknown name "bogus"/],
+      ['scenario: base.yaml\nvary:\n  mesh: [{shape: sphere, vertices: 300}, {file: nowhere.ply}]\n', /point 1 .* mesh\.file: no such file .*nowhere\.ply/],
     ];
     for (const [k, [text, message]] of cases.entries()) {
       const f = write(`bad-${k}.yaml`, text);

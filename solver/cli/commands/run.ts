@@ -12,8 +12,9 @@ export const registerRun: RegisterCommand = (program, ctx) => {
     .option('--resume <dir>', 'continue an interrupted run from its saved state')
     .option('--force', 'replace an existing run directory')
     .option('--check', 'check the scenario and print the resolved plan without running')
+    .option('--yes', 'run even if the first steps show it will take more than a day')
     .addOption(new Option('--progress <mode>', 'progress display').choices(PROGRESS_CHOICES).default('auto'))
-    .action(async (file: string | undefined, o: { out?: string; resume?: string; force?: boolean; check?: boolean; progress: ProgressChoice }) => {
+    .action(async (file: string | undefined, o: { out?: string; resume?: string; force?: boolean; check?: boolean; yes?: boolean; progress: ProgressChoice }) => {
       if (o.resume && (file || o.out)) throw new UsageError('--resume DIR continues a run as it was set up: give no scenario or --out with it');
       if (!o.resume && !file) throw new UsageError('give a scenario file (placode run scenario.yaml --out DIR) or --resume DIR');
       const { runScenarioFile, resumeRun, checkScenario } = await import('../../run/runScenarioFile.ts');
@@ -22,8 +23,8 @@ export const registerRun: RegisterCommand = (program, ctx) => {
         return;
       }
       const outcome = o.resume
-        ? await resumeRun(o.resume, { progress: o.progress, command: ctx.argv })
-        : await runScenarioFile(file!, { out: o.out, force: o.force, progress: o.progress, command: ctx.argv });
+        ? await resumeRun(o.resume, { progress: o.progress, yes: o.yes, command: ctx.argv })
+        : await runScenarioFile(file!, { out: o.out, force: o.force, progress: o.progress, yes: o.yes, command: ctx.argv });
       ctx.setExitCode(outcome.reason === 'blow-up' || outcome.reason === 'degenerate' ? 3 : outcome.reason === 'interrupted' ? 130 : outcome.reason === 'failed' ? 1 : 0);
     });
 };

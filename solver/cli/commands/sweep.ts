@@ -36,11 +36,12 @@ export const registerSweep: RegisterCommand = (program, ctx) => {
       const { runSweepLocal } = await import('../../sweep/sweepPool.ts');
       const r = await runSweepLocal(dir, { workers, retryFailed: o.retryFailed, progress: o.progress });
       process.stdout.write(`${r.done} done, ${r.failed.length} failed, ${r.skipped} already finished, ${r.unfinished} unfinished of ${r.total} runs in ${r.seconds.toFixed(1)} s on ${r.workers} worker(s)\n`);
-      for (const f of r.failed) process.stdout.write(`  failed: run ${f.index} (${f.id}): ${f.message.split('\n')[0]}\n`);
+      for (const f of r.failed) process.stdout.write(`  failed: run ${f.index} (${f.id}): ${indented(f.message)}\n`);
+      if (r.failedBefore) process.stdout.write(`${r.failedBefore} run(s) failed in an earlier call and were not run again: placode sweep status ${dir} --list failed shows why; --retry-failed runs them again\n`);
       if (r.interrupted) {
         process.stdout.write(`interrupted; continue with: placode sweep run ${dir}\n`);
         ctx.setExitCode(130);
-      } else if (r.failed.length) ctx.setExitCode(1);
+      } else if (r.failed.length || r.failedBefore) ctx.setExitCode(1);
     });
   sweep
     .command('task')
@@ -56,7 +57,7 @@ export const registerSweep: RegisterCommand = (program, ctx) => {
       process.on('SIGTERM', onSignal);
       try {
         const r = await runSweepTask(dir, index, { retryFailed: o.retryFailed, log: (s) => process.stderr.write(s + '\n'), shouldStop: () => stop });
-        process.stdout.write(`run ${r.index} (${r.id}): ${r.skipped ? `already ${r.state}` : r.state}: ${r.message.split('\n')[0]}\n`);
+        process.stdout.write(`run ${r.index} (${r.id}): ${r.skipped ? `already ${r.state}` : r.state}: ${indented(r.message)}\n`);
         ctx.setExitCode(r.state === 'done' ? 0 : r.state === 'failed' ? 1 : 130);
       } finally {
         process.off('SIGTERM', onSignal);
@@ -79,9 +80,9 @@ export const registerSweep: RegisterCommand = (program, ctx) => {
       process.stdout.write(`${dir}: ${total} runs — ${Object.entries(s.counts).map(([k, v]) => `${v} ${k}`).join(', ')}\n`);
       if (o.list) {
         if (!Object.hasOwn(s.counts, o.list)) throw new UsageError(`--list ${o.list}: one of ${Object.keys(s.counts).join(', ')}`);
-        for (const r of s.runs) if (r.state === o.list) process.stdout.write(`  ${String(r.index).padStart(5)}  ${r.id}  ${r.label}${r.message ? `  — ${r.message.split('\n')[0]}` : ''}\n`);
+        for (const r of s.runs) if (r.state === o.list) process.stdout.write(`  ${String(r.index).padStart(5)}  ${r.id}  ${r.label}${r.message ? `  — ${indented(r.message)}` : ''}\n`);
       } else {
-        for (const r of s.runs) if (r.state === 'failed') process.stdout.write(`  failed ${r.index} (${r.label}): ${(r.message ?? '').split('\n')[0]}\n`);
+        for (const r of s.runs) if (r.state === 'failed') process.stdout.write(`  failed ${r.index} (${r.label}): ${indented(r.message ?? '')}\n`);
       }
     });
   sweep
@@ -125,3 +126,8 @@ export const registerSweep: RegisterCommand = (program, ctx) => {
       if (r.sheet) process.stdout.write(`wrote ${r.sheet}\n`);
     });
 };
+
+/** A message of several lines, its later lines indented under the first. */
+function indented(message: string): string {
+  return message.trimEnd().split('\n').join('\n      ');
+}
