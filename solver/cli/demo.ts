@@ -1,4 +1,5 @@
-import { mkdirSync } from 'node:fs';
+import { ensureDirectory } from '../io/fileAccess.ts';
+import { UsageError } from '../UsageError.ts';
 import { join, resolve } from 'node:path';
 import { buildShape } from '../../meshes/shapes/index.ts';
 import { meshStatistics } from '../mesh/meshStatistics.ts';
@@ -24,7 +25,7 @@ export const DEMO_SCENARIO = packageFile('meshes/examples/limb-paddle-growing.ya
  */
 export async function runDemo(outDir: string): Promise<void> {
   const say = (s: string) => process.stdout.write(s + '\n');
-  mkdirSync(outDir, { recursive: true });
+  ensureDirectory(outDir, (m) => new UsageError(m));
   say('Placode demo: a limb-bud paddle (length 3, stalk radius 0.5, paddle 2.0 × 0.6)');
   const t0 = performance.now();
   const { mesh, params } = buildShape({ shape: 'limb-bud', vertices: 12_000 });

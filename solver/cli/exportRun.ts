@@ -1,4 +1,4 @@
-import { mkdirSync } from 'node:fs';
+import { ensureDirectory } from '../io/fileAccess.ts';
 import { basename, join } from 'node:path';
 import { writeFileAtomic } from '../io/meshFiles.ts';
 import { colorizeField } from '../io/colormap.ts';
@@ -82,7 +82,7 @@ export async function exportRun(input: string, o: ExportOptions): Promise<string
     return [o.out];
   }
   const many = snapshots.length > 1;
-  if (many) mkdirSync(o.out, { recursive: true });
+  if (many) ensureDirectory(o.out, (m) => new UsageError(m));
   const written: string[] = [];
   for (const s of snapshots) {
     const colors = colorizeField(s.fields[species], colormap, range);

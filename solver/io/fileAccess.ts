@@ -131,8 +131,10 @@ export function ensureDirectory(dir: string, fail: (message: string) => Error): 
     try {
       mkdirSync(level);
     } catch (e) {
-      if ((e as NodeJS.ErrnoException).code === 'EEXIST' && statSync(level).isDirectory()) continue;
-      throw fail(`cannot make the directory ${level}: ${fileErrorWords(e)}`);
+      const code = (e as NodeJS.ErrnoException).code;
+      if (code === 'EEXIST' && statSync(level).isDirectory()) continue;
+      // ENOENT when the parent exists: a file system that makes no directories there (/proc, /sys)
+      throw fail(`cannot make the directory ${level}: ${code === 'ENOENT' ? 'the file system does not allow a directory there' : fileErrorWords(e)}`);
     }
   }
 }

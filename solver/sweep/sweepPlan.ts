@@ -1,4 +1,5 @@
-import { existsSync, mkdirSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
+import { existsSync, readFileSync, readdirSync, rmSync, statSync } from 'node:fs';
+import { ensureDirectory } from '../io/fileAccess.ts';
 import { createHash } from 'node:crypto';
 import { dirname, isAbsolute, join, relative, resolve } from 'node:path';
 import { parseCheckedYaml, parseScenario, compileSchema, pathText, validateScenario } from '../scenario/parseScenario.ts';
@@ -153,8 +154,8 @@ export function planSweep(file: string, options: PlanOptions): { dir: string; en
   }
   for (const w of resolved.warnings) log(`warning (point 0, ${entries[0].label}): ${w}`);
 
-  mkdirSync(scenariosDir, { recursive: true });
-  mkdirSync(join(dir, SWEEP_FILES.runs), { recursive: true });
+  ensureDirectory(scenariosDir, (m) => new UsageError(m));
+  ensureDirectory(join(dir, SWEEP_FILES.runs), (m) => new UsageError(m));
   const keep = new Set(entries.map((e) => `${e.id}.json`));
   for (const old of readdirSync(scenariosDir)) if (!keep.has(old)) rmSync(join(scenariosDir, old), { force: true });
   entries.forEach((e, k) => writeFileAtomic(join(dir, e.scenario), texts[k], true));

@@ -48,10 +48,10 @@ export const registerModes: RegisterCommand = (program) => {
       const area = meshArea(r.mesh);
       const written: string[] = [];
       if (paint.length > 0) {
-        const { mkdirSync } = await import('node:fs');
+        const { ensureDirectory } = await import('../../io/fileAccess.ts');
         const { join } = await import('node:path');
         const { saveModeFile } = await import('../saveModeFile.ts');
-        mkdirSync(o.outDir, { recursive: true });
+        ensureDirectory(o.outDir, (m) => new UsageError(m));
         for (const k of paint) {
           const file = join(o.outDir, `mode-${String(k).padStart(3, '0')}.ply`);
           saveModeFile(file, r.mesh, eig.vectors[k], { force: o.force, comments: [`eigenvalue ${eig.values[k]}`] });
