@@ -57,7 +57,7 @@ export async function runScenarioFile(file: string, options: RunOptions): Promis
   const { text, resolved } = loadScenarioFile(file);
   const dir = replacing ? `${out}.new-${process.pid}` : out;
   if (replacing) rmSync(dir, { recursive: true, force: true });
-  ensureDirectory(dir, (m) => new UsageError(`--out ${m}`));
+  ensureDirectory(replacing ? dir : options.out, (m) => new UsageError(`--out ${m}`));
   ensureDirectory(join(dir, RUN_FILES.frames), (m) => new UsageError(m));
   const record = newRunRecord(resolved, {
     version: VERSION, node: process.version, platform: `${process.platform}-${process.arch}`, command: options.command ?? [],

@@ -10,8 +10,8 @@ export const validateScenario = ajv.compile(SCENARIO_SCHEMA);
 /** A parsed scenario with a way to locate any path in the source text. */
 export interface ScenarioSource {
   scenario: Scenario;
-  /** line and column (1-based) of a value or key at a path */
-  locate(path: (string | number)[]): { line: number; column: number } | undefined;
+  /** line and column (1-based) of the value at a path, or of its key (`atKey`, or when it has no value) */
+  locate(path: (string | number)[], atKey?: boolean): { line: number; column: number } | undefined;
 }
 
 export function pathText(path: readonly (string | number)[]): string {
@@ -21,8 +21,8 @@ export function pathText(path: readonly (string | number)[]): string {
 }
 
 function locator(doc: Document, lines: LineCounter): ScenarioSource['locate'] {
-  return (path) => {
-    let node = doc.getIn(path, true) as Node | undefined;
+  return (path, atKey = false) => {
+    let node = atKey ? undefined : (doc.getIn(path, true) as Node | undefined);
     if (!node && path.length) {
       // an unknown key: point at the key itself
       const parent = doc.getIn(path.slice(0, -1), true);
@@ -99,7 +99,7 @@ function schemaProblems(errors: ErrorObject[], locate: ScenarioSource['locate'])
     const key = `${pathText(path)}|${message}`;
     if (seen.has(key)) continue;
     seen.add(key);
-    out.push({ path: pathText(path), message, ...locate(path) });
+    out.push({ path: pathText(path), message, ...locate(path, e.keyword === 'additionalProperties') });
   }
   return out;
 }
