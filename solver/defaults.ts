@@ -30,6 +30,10 @@ export const FORMULA_MAX_NESTING = 64;
 export const MAX_RUN_STEPS = 1e12;
 /** A run whose estimated wall-clock time exceeds this stops after its first chunk unless confirmed (`--yes`). */
 export const LONG_RUN_SECONDS = 24 * 3600;
+/** The most threads one run may ask for (time.threads, --threads). */
+export const MAX_THREADS = 256;
+/** Threads of each run of a sweep unless its scenario sets time.threads: the sweep's pool of workers already fills the cores. */
+export const SWEEP_RUN_THREADS = 1;
 /** Output interval when the scenario gives none: end / OUTPUTS_PER_RUN. */
 export const OUTPUTS_PER_RUN = 20;
 /** The explicit scheme's default step, as a fraction of the positivity bound. */

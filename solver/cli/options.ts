@@ -6,10 +6,10 @@ import { DEFAULT_SHAPE_VERTICES } from '../defaults.ts';
 export const collect = (value: string, previous: string[] = []) => previous.concat([value]);
 
 /** A whole number ≥ min from the command line (undefined when the option was not given). */
-export function parseCount(text: string | undefined, what: string, min = 0): number | undefined {
+export function parseCount(text: string | undefined, what: string, min = 0, max = Number.MAX_SAFE_INTEGER): number | undefined {
   if (text === undefined) return undefined;
   const v = Number(text);
-  if (!Number.isInteger(v) || v < min) throw new UsageError(`${what} must be a whole number ≥ ${min}, got "${text}"`);
+  if (!Number.isInteger(v) || v < min || v > max) throw new UsageError(`${what} must be a whole number ${max < Number.MAX_SAFE_INTEGER ? `from ${min} to ${max}` : `≥ ${min}`}, got "${text}"`);
   return v;
 }
 

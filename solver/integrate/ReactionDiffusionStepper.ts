@@ -1,19 +1,21 @@
 import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
 import { csrAddDiagonal } from '../linalg/CsrMatrix.ts';
 import { SparseCholesky } from '../linalg/SparseCholesky.ts';
-import { ellLayout, ellPattern, ellValues, type EllLayout, type EllPattern, type EllValues } from '../linalg/EllMatrix.ts';
+import { ellPattern, ellValues, type EllPattern, type EllValues } from '../linalg/EllMatrix.ts';
 import { withPositions, type Mesh } from '../mesh/Mesh.ts';
 import { cotanStiffness } from '../fem/cotanStiffness.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
 import type { ReactionDiffusionSystem } from './ReactionDiffusionSystem.ts';
-import { compileExplicitKernel, compileImexRhsKernel, type DiffusionKind, type ExplicitKernel, type ImexRhsKernel, type KernelLayout } from './stepKernels.ts';
-import { compileFusedCg, type FusedCgSolver } from './fusedConjugateGradient.ts';
 import { diffusionStiffness } from './diffusionStiffness.ts';
-import type { RowProductPlan } from './rowProductCode.ts';
+import { stepperLayout, type StepperLayout } from './wasm/stepperLayout.ts';
+import { stepperImports, stepperModule, CG_SCALARS, CG_SLOTS, type StepperExports } from './wasm/stepperModule.ts';
+import type { TeamKernel, ThreadTeam } from './ThreadTeam.ts';
 import { CG_MAX_ITERATIONS, CG_TOLERANCE } from '../defaults.ts';
 
 export type SchemeName = 'explicit' | 'imex';
 export type LinearSolverName = 'cg' | 'cholesky';
+/** How each species diffuses: not at all, with a constant D (shared K), or with its own D-weighted stiffness. */
+export type DiffusionKind = 'none' | 'constant' | 'field';
 
 export interface StepperOptions {
   scheme: SchemeName;
@@ -22,10 +24,12 @@ export interface StepperOptions {
   solver?: LinearSolverName;
   /** keep what `setGeometry` needs to move the surface during the run */
   growing?: boolean;
-  /** CG relative residual tolerance (default 1e-8) */
+  /** CG relative residual tolerance (default CG_TOLERANCE) */
   tolerance?: number;
-  /** CG iteration cap per step (default 2000) */
+  /** CG iteration cap per step (default CG_MAX_ITERATIONS) */
   maxIterations?: number;
+  /** threads to step with: a team made by the caller (default: this thread alone); results do not depend on it */
+  team?: ThreadTeam;
 }
 
 /**
@@ -36,34 +40,39 @@ export interface StepperOptions {
  *   dt < 2/(D·λ_max(M⁻¹K)); see `explicitStepLimit`.
  * - `imex`: diffusion implicit, reaction explicit (Barreira, Elliott &
  *   Madzvamuse, J. Math. Biol. 63 (2011)): (M + dt·D·K)U' = M(U + dt·F(U)),
- *   one SPD solve per species, all species solved together by fused Jacobi-CG
- *   warm-started from U + dt·F(U), or by sparse Cholesky factors computed once.
+ *   all species solved together by Jacobi-CG warm-started from U + dt·F(U)
+ *   (Hestenes & Stiefel 1952; Saad, "Iterative Methods for Sparse Linear
+ *   Systems", 2nd ed., alg. 9.1), or by sparse Cholesky factors computed once.
  *
- * The state is vertex-major (see `speciesField`). `step` keeps the state
- * before the step in `previous`, so a step that produces NaN or infinity
- * leaves the last good state in hand.
+ * The sweeps are WebAssembly generated for this system (stepperModule) over
+ * one memory holding every per-vertex array (stepperLayout); with a team they
+ * run on several threads sharing that memory, with the same results to the
+ * bit. The state is vertex-major (see `speciesField`). `step` keeps the state
+ * before the step in `previous`, so a step that produces NaN or infinity (or a
+ * failed thread) leaves the last good state in hand.
  */
 export class ReactionDiffusionStepper {
   readonly system: ReactionDiffusionSystem;
-  readonly options: Required<StepperOptions>;
+  readonly options: Required<Omit<StepperOptions, 'team'>>;
   readonly vertexCount: number;
   readonly speciesCount: number;
-  readonly mass: Float64Array;
   readonly diffusionKinds: readonly DiffusionKind[];
-  private readonly layout: EllLayout;
+  /** threads the sweeps run on (1 on small meshes, however large the team) */
+  readonly threads: number;
+  private readonly layout: StepperLayout;
+  private readonly memory: WebAssembly.Memory;
+  private readonly kernels: StepperExports;
+  private readonly team?: ThreadTeam;
+  private readonly module: WebAssembly.Module;
+  private readonly pattern: EllPattern;
   private readonly sets: EllValues[];
-  /** kept for `setGeometry` (a growing surface): the CSR operators, their ELL map, per-triangle D */
-  private readonly moving?: { pattern: EllPattern; csr: CsrMatrix[]; triangleD: (Float64Array | undefined)[]; weightSet: number[] };
-  private mesh: Mesh;
   private readonly coefficient: Float64Array;
-  private readonly constants: Float64Array;
-  private readonly fields: (Float64Array | undefined)[];
-  private current: Float64Array;
-  private other: Float64Array;
-  private readonly explicitKernel?: ExplicitKernel;
-  private readonly rhsKernel?: ImexRhsKernel;
-  private readonly cg?: FusedCgSolver;
-  private readonly work?: { r: Float64Array; p: Float64Array; q: Float64Array; inverseDiagonal: Float64Array };
+  private readonly weightSet: number[];
+  private readonly stateViews: [Float64Array, Float64Array];
+  private current = 0;
+  /** kept for `setGeometry` (a growing surface): the CSR operators and per-triangle D */
+  private readonly moving?: { csr: CsrMatrix[]; triangleD: (Float64Array | undefined)[] };
+  private mesh: Mesh;
   private readonly factors?: { factor: SparseCholesky; species: number[] }[];
   private readonly column?: Float64Array;
   private readonly solution?: Float64Array;
@@ -76,7 +85,8 @@ export class ReactionDiffusionStepper {
   /** `assembled`: K and lumped M of `system.mesh` when the caller has them already (they are not modified). */
   constructor(system: ReactionDiffusionSystem, options: StepperOptions, assembled?: { stiffness: CsrMatrix; mass: Float64Array }) {
     this.system = system;
-    this.options = { solver: 'cg', tolerance: CG_TOLERANCE, maxIterations: CG_MAX_ITERATIONS, growing: false, ...options };
+    const { team, ...rest } = options;
+    this.options = { solver: 'cg', tolerance: CG_TOLERANCE, maxIterations: CG_MAX_ITERATIONS, growing: false, ...rest };
     const { mesh, kinetics } = system;
     this.mesh = mesh;
     const n = mesh.positions.length / 3;
@@ -89,67 +99,214 @@ export class ReactionDiffusionStepper {
     // operators assembled by the caller are read, never written: a growing surface reassembles into copies
     const growing = this.options.growing;
     const stiffness = assembled ? (growing ? { ...assembled.stiffness, values: assembled.stiffness.values.slice() } : assembled.stiffness) : cotanStiffness(mesh);
-    const mass = assembled ? (growing ? assembled.mass.slice() : assembled.mass) : lumpedMass(mesh);
-    this.mass = mass;
+    const mass = assembled ? assembled.mass : lumpedMass(mesh);
     const explicit = this.options.scheme === 'explicit';
-    const rowScale = explicit ? mass.map((m) => 1 / m) : undefined;
-    const pattern = ellPattern(stiffness, nS);
+    const cholesky = !explicit && this.options.solver === 'cholesky';
+    this.pattern = ellPattern(stiffness, nS);
+    // weight sets: K for every constant D, a D-weighted K per field D
     const kinds: DiffusionKind[] = [];
-    const weightSet: number[] = [];
+    this.weightSet = [];
     const csrOf: CsrMatrix[] = [stiffness];
-    const triangleD: (Float64Array | undefined)[] = [];
-    this.sets = [ellValues(pattern, stiffness, rowScale)];
+    const triangleD: (Float64Array | undefined)[] = [undefined];
     this.coefficient = new Float64Array(nS);
     system.diffusion.forEach((d, s) => {
       if (typeof d === 'number') {
         kinds.push(d === 0 ? 'none' : 'constant');
-        weightSet.push(d === 0 ? -1 : 0);
+        this.weightSet.push(d === 0 ? -1 : 0);
         this.coefficient[s] = dt * d;
       } else {
         kinds.push('field');
-        const { matrix: k, triangleD: coefficient } = diffusionStiffness(mesh, d, stiffness);
+        const { matrix, triangleD: coefficient } = diffusionStiffness(mesh, d, stiffness);
+        this.weightSet.push(csrOf.length);
+        csrOf.push(matrix);
         triangleD.push(coefficient);
-        weightSet.push(this.sets.length);
-        csrOf.push(k);
-        this.sets.push(ellValues(pattern, k, rowScale));
         this.coefficient[s] = dt;
       }
     });
     this.diffusionKinds = kinds;
-    this.layout = ellLayout(pattern);
-    if (this.options.growing) this.moving = { pattern, csr: csrOf, triangleD: [undefined, ...triangleD], weightSet };
-    const rows: RowProductPlan = { speciesCount: nS, width: pattern.width, hasOverflow: pattern.overflowColumns.length > 0, weightSet };
-    this.constants = new Float64Array(system.parameters.map((p) => (typeof p === 'number' ? p : 0)));
-    this.fields = system.parameters.map((p) => (typeof p === 'number' ? undefined : p));
-    const layout: KernelLayout = { kinetics, rows, fieldParameters: this.fields.map((f) => f !== undefined) };
-    this.current = new Float64Array(n * nS);
-    this.other = new Float64Array(n * nS);
+    if (growing) this.moving = { csr: csrOf, triangleD };
+
+    // one memory for every array the kernels touch
+    const usesPositions = kinetics.uses.x || kinetics.uses.y || kinetics.uses.z;
+    this.layout = stepperLayout({
+      n, nS, width: this.pattern.width, overflowCount: this.pattern.overflowColumns.length, sets: csrOf.length,
+      fieldParameters: system.parameters.map((p) => typeof p !== 'number'), usesPositions, cg: !explicit && !cholesky,
+    });
+    const L = this.layout;
+    const members = team ? Math.max(1, Math.min(team.size, Math.floor(L.blocks / team.minBlocksPerMember))) : 1;
+    this.threads = members;
+    const shared = members > 1;
+    const pages = Math.ceil(L.bytes / 65536) + 1;
+    this.memory = new WebAssembly.Memory(shared ? { initial: pages, maximum: pages, shared: true } : { initial: pages, maximum: pages });
+    const buffer = this.memory.buffer;
+    const f64 = (at: number, length: number) => new Float64Array(buffer, at, length);
+    const i32 = (at: number, length: number) => new Int32Array(buffer, at, length);
+    // neighbours as byte offsets of their state (the layout's columns already count the species)
+    const columns = i32(L.columns, n * this.pattern.width);
+    for (let k = 0; k < columns.length; k++) columns[k] = 8 * this.pattern.columns[k];
+    i32(L.overflowOffsets, n + 1).set(this.pattern.overflowOffsets);
+    const overflowColumns = i32(L.overflowColumns, this.pattern.overflowColumns.length);
+    for (let k = 0; k < overflowColumns.length; k++) overflowColumns[k] = 8 * this.pattern.overflowColumns[k];
+    f64(L.mass, n).set(mass);
+    this.sets = csrOf.map((_, g) => ({ diagonal: f64(L.diagonal[g], n), weights: f64(L.weights[g], n * L.shape.width), overflow: f64(L.overflow[g], L.shape.overflowCount) }));
+    this.fillWeights(csrOf);
+    system.parameters.forEach((p, k) => { if (typeof p !== 'number') f64(L.fields[k]!, n).set(p); });
+    if (usesPositions) f64(L.positions, 3 * n).set(mesh.positions);
+    this.stateViews = [f64(L.states[0], n * nS), f64(L.states[1], n * nS)];
     this.lastIterations = new Int32Array(nS);
-    if (explicit) {
-      this.explicitKernel = compileExplicitKernel(layout);
-    } else {
-      this.rhsKernel = compileImexRhsKernel(layout);
-      if (this.options.solver === 'cholesky') {
-        this.factors = this.buildFactors(csrOf, weightSet);
-        this.column = new Float64Array(n);
-        this.solution = new Float64Array(n);
-      } else {
-        this.cg = compileFusedCg(rows);
-        this.work = { r: new Float64Array(n * nS), p: new Float64Array(n * nS), q: new Float64Array(n * nS), inverseDiagonal: new Float64Array(n * nS) };
-        this.fillInverseDiagonal(weightSet);
-      }
+    if (L.shape.cg) this.fillInverseDiagonal();
+    if (cholesky) {
+      this.factors = this.buildFactors(csrOf);
+      this.column = new Float64Array(n);
+      this.solution = new Float64Array(n);
     }
+
+    const bytes = stepperModule({
+      layout: L, kinetics, weightSet: this.weightSet, coefficient: Array.from(this.coefficient), dt,
+      constants: system.parameters.map((p) => (typeof p === 'number' ? p : 0)), shared, pages,
+    });
+    this.module = new WebAssembly.Module(bytes as BufferSource);
+    this.kernels = new WebAssembly.Instance(this.module, stepperImports(this.memory)).exports as unknown as StepperExports;
+    if (shared && team) this.team = team;
   }
 
-  /** Jacobi preconditioner of the CG solve: 1/(m_i + c_s K_s,ii). */
-  private fillInverseDiagonal(weightSet: readonly number[]): void {
-    const n = this.vertexCount, nS = this.speciesCount, inv = this.work!.inverseDiagonal;
-    for (let i = 0; i < n; i++) {
+  /** The surface as it is now (moved by `setGeometry`). */
+  get surface(): Mesh {
+    return this.mesh;
+  }
+
+  /** Lumped mass of the current surface (a view into the stepper's memory). */
+  get mass(): Float64Array {
+    return new Float64Array(this.memory.buffer, this.layout.mass, this.vertexCount);
+  }
+
+  /** The current state (vertex-major), a view into the stepper's memory. Write into it to set initial values. */
+  get state(): Float64Array {
+    return this.stateViews[this.current];
+  }
+
+  /** The state before the last step. */
+  get previous(): Float64Array {
+    return this.stateViews[1 - this.current];
+  }
+
+  /** Replace the current state (copied). */
+  setState(values: Float64Array): void {
+    if (values.length !== this.state.length) throw new Error(`state has ${values.length} values, expected ${this.state.length}`);
+    this.state.set(values);
+  }
+
+  /**
+   * Advance the state from time t by dt. Returns false if any new value is NaN
+   * or infinite; the state before the step is then in `previous`. A failing
+   * thread throws (ThreadError) with the state before the step in `previous`.
+   */
+  step(t: number): boolean {
+    const L = this.layout;
+    const from = L.states[this.current], to = L.states[1 - this.current];
+    let finite: boolean;
+    if (this.options.scheme === 'explicit') {
+      finite = this.run('explicit', from, to, t) === 0;
+    } else {
+      finite = this.run('rhs', from, to, t) === 0;
+      if (finite) finite = this.factors ? this.solveFactored() : this.solveCg(to);
+    }
+    this.current = 1 - this.current;
+    this.stepsTaken++;
+    return finite;
+  }
+
+  /** A kernel over every reduction block, on this thread or the team's. */
+  private run(kernel: TeamKernel, a0 = 0, a1 = 0, a2 = 0): number {
+    const blocks = this.layout.blocks;
+    if (this.team) {
+      this.team.load(this, this.module, this.memory, this.kernels as unknown as Record<string, (...a: number[]) => number>);
+      return this.team.run(kernel, blocks, this.threads, a0, a1, a2);
+    }
+    return (this.kernels[kernel] as (...a: number[]) => number)(0, blocks, a0, a1, a2) | 0;
+  }
+
+  /** Sums of the first `count` partial-sum slots over the blocks, in block order. */
+  private reduce(count: number): Float64Array {
+    const L = this.layout;
+    const partials = new Float64Array(this.memory.buffer, L.partials, L.blocks * L.slots);
+    const out = new Float64Array(count);
+    for (let b = 0; b < L.blocks; b++) for (let k = 0; k < count; k++) out[k] += partials[b * L.slots + k];
+    return out;
+  }
+
+  /**
+   * The fused Jacobi-CG solve of (diag(m) + c_s·K_s)·x_s = m·g_s for every
+   * species, x (at byte offset `x`) holding g on entry: each species stops when
+   * ‖r_s‖₂ ≤ tol·‖b_s‖₂, then is shifted by a constant so that Σ m·x_s =
+   * Σ m·g_s (which the exact solution satisfies because 1ᵀK_s = 0), so the
+   * total amount is conserved to round-off. Returns false if the solution is
+   * not finite.
+   */
+  private solveCg(x: number): boolean {
+    const nS = this.speciesCount, L = this.layout;
+    const scalars = new Float64Array(this.memory.buffer, L.scalars, 4 * nS);
+    const { tolerance, maxIterations } = this.options;
+    this.run('cgStart', x);
+    const start = this.reduce(CG_SLOTS.start * nS);
+    const rz = start.slice(0, nS);
+    const threshold = new Float64Array(nS), done = new Uint8Array(nS);
+    let remaining = nS;
+    for (let s = 0; s < nS; s++) {
+      threshold[s] = tolerance * tolerance * start[2 * nS + s];
+      done[s] = start[nS + s] <= threshold[s] ? 1 : 0;
+      this.lastIterations[s] = done[s] ? 0 : -1;
+      if (done[s]) remaining--;
+    }
+    let it = 0;
+    while (remaining > 0 && it < maxIterations) {
+      it++;
+      this.run('cgProduct');
+      const pq = this.reduce(CG_SLOTS.product * nS);
+      for (let s = 0; s < nS; s++) scalars[CG_SCALARS.alpha * nS + s] = done[s] ? 0 : rz[s] / pq[s];
+      this.run('cgUpdate', x);
+      const updated = this.reduce(CG_SLOTS.update * nS);
       for (let s = 0; s < nS; s++) {
-        const kii = weightSet[s] < 0 ? 0 : this.sets[weightSet[s]].diagonal[i];
-        inv[i * nS + s] = 1 / (this.mass[i] + this.coefficient[s] * kii);
+        scalars[CG_SCALARS.beta * nS + s] = 0;
+        if (done[s]) continue;
+        if (updated[nS + s] <= threshold[s]) {
+          done[s] = 1;
+          this.lastIterations[s] = it;
+          remaining--;
+        } else {
+          scalars[CG_SCALARS.beta * nS + s] = updated[s] / rz[s];
+          rz[s] = updated[s];
+        }
+      }
+      if (remaining > 0) this.run('cgDirection');
+    }
+    this.totalIterations += it;
+    this.run('cgTotal', x);
+    const totals = this.reduce(1 + nS);
+    let finite = Number.isFinite(totals[0]);
+    for (let s = 0; s < nS; s++) {
+      scalars[CG_SCALARS.shift * nS + s] = (start[3 * nS + s] - totals[1 + s]) / totals[0];
+      finite &&= Number.isFinite(totals[1 + s]);
+    }
+    this.run('cgShift', x);
+    return finite;
+  }
+
+  private solveFactored(): boolean {
+    const n = this.vertexCount, nS = this.speciesCount;
+    const col = this.column!, sol = this.solution!, x = this.stateViews[1 - this.current], m = this.mass;
+    let check = 0;
+    for (const { factor, species } of this.factors!) {
+      for (const s of species) {
+        for (let i = 0; i < n; i++) col[i] = m[i] * x[i * nS + s]; // right-hand side M·(U + dt·F(U))
+        factor.solve(col, sol);
+        for (let i = 0; i < n; i++) {
+          x[i * nS + s] = sol[i];
+          check += sol[i];
+        }
       }
     }
+    return Number.isFinite(check);
   }
 
   /**
@@ -159,130 +316,69 @@ export class ReactionDiffusionStepper {
    * U_i ← U_i·m_i(old)/m_i(new), then K and M are reassembled on the new
    * geometry. Dilution by growth is this transfer; nothing else is added.
    * Everything is recomputed from the positions alone, so a run resumed from
-   * saved positions continues bit for bit.
-   * Needs `growing: true`.
+   * saved positions continues bit for bit. Needs `growing: true`.
    */
   setGeometry(positions: Float64Array): void {
     const mv = this.moving;
     if (!mv) throw new Error('setGeometry: create the stepper with growing: true');
     this.mesh = withPositions(this.mesh, positions);
     const n = this.vertexCount, nS = this.speciesCount;
-    const u = this.current;
-    const old = this.mass.slice();
-    lumpedMass(this.mesh, this.mass);
+    const u = this.state;
+    const mass = this.mass;
+    const old = mass.slice();
+    lumpedMass(this.mesh, mass);
     for (let i = 0; i < n; i++) {
-      const f = old[i] / this.mass[i];
+      const f = old[i] / mass[i];
       for (let s = 0; s < nS; s++) u[i * nS + s] *= f;
     }
-    if (this.explicitKernel) {
-      // back to the unscaled coefficients: the new weights hold K/m of the new surface
-      this.system.diffusion.forEach((d, s) => (this.coefficient[s] = typeof d === 'number' ? this.options.dt * d : this.options.dt));
-    }
-    const rowScale = this.explicitKernel ? this.mass.map((m) => 1 / m) : undefined;
-    mv.csr.forEach((k, g) => {
-      cotanStiffness(this.mesh, k, mv.triangleD[g]);
-      ellValues(mv.pattern, k, rowScale, this.sets[g]);
-    });
-    if (this.work) this.fillInverseDiagonal(mv.weightSet);
-    if (this.factors) this.refactorAll(mv);
+    mv.csr.forEach((k, g) => cotanStiffness(this.mesh, k, mv.triangleD[g]));
+    this.fillWeights(mv.csr);
+    if (this.layout.positions >= 0) new Float64Array(this.memory.buffer, this.layout.positions, 3 * n).set(positions);
+    if (this.layout.shape.cg) this.fillInverseDiagonal();
+    if (this.factors) for (const { factor, species } of this.factors) factor.refactor(this.implicitMatrix(species[0], mv.csr));
   }
 
-  private refactorAll(mv: NonNullable<ReactionDiffusionStepper['moving']>): void {
-    for (const { factor, species } of this.factors!) factor.refactor(this.implicitMatrix(species[0], mv.csr, mv.weightSet));
+  /** ELL values of every weight set: K (rows scaled by 1/m for the explicit scheme) into the memory. */
+  private fillWeights(csrOf: readonly CsrMatrix[]): void {
+    const rowScale = this.options.scheme === 'explicit' ? this.mass.map((m) => 1 / m) : undefined;
+    csrOf.forEach((k, g) => ellValues(this.pattern, k, rowScale, this.sets[g]));
+  }
+
+  /** Jacobi preconditioner of the CG solve: 1/(m_i + c_s K_s,ii). */
+  private fillInverseDiagonal(): void {
+    const n = this.vertexCount, nS = this.speciesCount;
+    const inv = new Float64Array(this.memory.buffer, this.layout.inverseDiagonal, n * nS), mass = this.mass;
+    for (let i = 0; i < n; i++) {
+      for (let s = 0; s < nS; s++) {
+        const g = this.weightSet[s];
+        const kii = g < 0 ? 0 : this.sets[g].diagonal[i];
+        inv[i * nS + s] = 1 / (mass[i] + this.coefficient[s] * kii);
+      }
+    }
   }
 
   /** M + c_s·K_s, the matrix species s solves with in the implicit–explicit step. */
-  private implicitMatrix(s: number, csrOf: readonly CsrMatrix[], weightSet: readonly number[]): CsrMatrix {
-    const g = weightSet[s];
+  private implicitMatrix(s: number, csrOf: readonly CsrMatrix[]): CsrMatrix {
+    const g = this.weightSet[s];
     const scale = g < 0 ? 0 : this.coefficient[s];
     const k = csrOf[Math.max(0, g)];
     return csrAddDiagonal({ ...k, values: k.values.map((v) => scale * v) }, this.mass);
   }
 
-  /** The surface as it is now (moved by `setGeometry`). */
-  get surface(): Mesh {
-    return this.mesh;
-  }
-
   /** One factorisation per distinct matrix M + c_s K_s (species with equal D share it). */
-  private buildFactors(csrOf: CsrMatrix[], weightSet: number[]): { factor: SparseCholesky; species: number[] }[] {
+  private buildFactors(csrOf: CsrMatrix[]): { factor: SparseCholesky; species: number[] }[] {
     const groups: { key: string; species: number[] }[] = [];
-    weightSet.forEach((g, s) => {
+    this.weightSet.forEach((g, s) => {
       const key = g < 0 ? 'none' : `${g}:${this.coefficient[s]}`;
       const found = groups.find((x) => x.key === key);
       if (found) found.species.push(s); else groups.push({ key, species: [s] });
     });
-    return groups.map(({ species }) => ({ factor: new SparseCholesky(this.implicitMatrix(species[0], csrOf, weightSet)), species }));
+    return groups.map(({ species }) => ({ factor: new SparseCholesky(this.implicitMatrix(species[0], csrOf)), species }));
   }
 
-  /** The current state (vertex-major). Write into it to set initial values. */
-  get state(): Float64Array {
-    return this.current;
-  }
-
-  /** The state before the last step. */
-  get previous(): Float64Array {
-    return this.other;
-  }
-
-  /** Replace the current state (copied). */
-  setState(values: Float64Array): void {
-    if (values.length !== this.current.length) throw new Error(`state has ${values.length} values, expected ${this.current.length}`);
-    this.current.set(values);
-  }
-
-  /**
-   * Advance the state from time t by dt. Returns false if any new value is NaN
-   * or infinite; the state before the step is then in `previous`.
-   */
-  step(t: number): boolean {
-    const n = this.vertexCount;
-    const dt = this.options.dt;
-    const positions = this.mesh.positions;
-    let check: number;
-    if (this.explicitKernel) {
-      check = this.explicitKernel(n, this.layout, this.sets, this.current, this.other, dt, t, this.coefficient, this.constants, this.fields, positions);
-    } else {
-      check = this.rhsKernel!(n, this.current, this.other, dt, t, this.constants, this.fields, positions);
-      if (Number.isFinite(check)) {
-        if (this.cg) {
-          const w = this.work!;
-          this.totalIterations += this.cg(n, this.layout, this.sets, this.mass, this.coefficient, w.inverseDiagonal, this.other, w.r, w.p, w.q, this.options.tolerance, this.options.maxIterations, this.lastIterations);
-        } else {
-          this.solveFactored();
-        }
-        check = 0;
-        const x = this.other;
-        for (let i = 0; i < x.length; i++) check += x[i];
-      }
-    }
-    const before = this.current;
-    this.current = this.other;
-    this.other = before;
-    this.stepsTaken++;
-    return Number.isFinite(check);
-  }
-
-  private solveFactored(): void {
-    const n = this.vertexCount, nS = this.speciesCount;
-    const col = this.column!, sol = this.solution!, x = this.other, m = this.mass;
-    for (const { factor, species } of this.factors!) {
-      for (const s of species) {
-        for (let i = 0; i < n; i++) col[i] = m[i] * x[i * nS + s]; // right-hand side M·(U + dt·F(U))
-        factor.solve(col, sol);
-        for (let i = 0; i < n; i++) x[i * nS + s] = sol[i];
-      }
-    }
-  }
-
-  /** Bytes held by this stepper's own arrays (operators, state, work vectors; not the mesh). */
+  /** Bytes held by this stepper (its memory with every per-vertex array, and factors; not the mesh). */
   bytes(): number {
-    const arrays: (ArrayBufferView | undefined)[] = [
-      this.layout.columns, this.layout.overflowOffsets, this.layout.overflowColumns, this.mass, this.current, this.other,
-      this.work?.r, this.work?.p, this.work?.q, this.work?.inverseDiagonal, this.column, this.solution,
-      ...this.fields, ...this.sets.flatMap((s) => [s.diagonal, s.weights, s.overflow]),
-    ];
-    let total = arrays.reduce((acc, a) => acc + (a?.byteLength ?? 0), 0);
+    let total = this.layout.bytes + (this.column?.byteLength ?? 0) + (this.solution?.byteLength ?? 0);
     for (const f of this.factors ?? []) total += f.factor.values.byteLength + f.factor.rowIndices.byteLength + f.factor.colOffsets.byteLength;
     return total;
   }

@@ -4,6 +4,7 @@ import type { Mesh } from '../mesh/Mesh.ts';
 import { SurfaceSimulation } from './SurfaceSimulation.ts';
 import { GrowthDegenerationError } from '../growth/GrowthDriver.ts';
 import { prolongField } from '../mesh/Refinement.ts';
+import { ThreadError, type ThreadTeam } from '../integrate/ThreadTeam.ts';
 
 /** A refinement made while growing: at which step, and the vertex counts before and after. */
 export interface EngineRefinement {
@@ -24,8 +25,8 @@ export type EngineEvent =
   | { kind: 'paused' }
   /** an output step: the surface is up to date; `finish` when the run ends here */
   | { kind: 'output'; step: number; finish?: EngineFinish }
-  /** a blow-up (NaN or infinity) or a folded surface: the state is the last good one, at `step` */
-  | { kind: 'failed'; reason: 'blow-up' | 'degenerate'; step: number; message: string; advice: string };
+  /** a blow-up (NaN or infinity), a folded surface or a failed thread: the state is the last good one, at `step` */
+  | { kind: 'failed'; reason: 'blow-up' | 'degenerate' | 'thread'; step: number; message: string; advice: string };
 
 /**
  * The one run loop of Placode, shared by `placode run`, the sweep workers and
@@ -49,10 +50,14 @@ export class RunEngine {
   private reference: Float64Array | undefined;
   private referenceStep: number;
 
-  /** At step 0 from the scenario's initial state, or at a saved state (the surface refined and moved as it was). */
-  constructor(r: ResolvedScenario, saved?: SavedState) {
+  /**
+   * At step 0 from the scenario's initial state, or at a saved state (the
+   * surface refined and moved as it was); with a team, the sweeps run on its
+   * threads (the results are the same to the bit).
+   */
+  constructor(r: ResolvedScenario, saved?: SavedState, team?: ThreadTeam) {
     this.scenario = r;
-    this.sim = new SurfaceSimulation(r, saved);
+    this.sim = new SurfaceSimulation(r, saved, team);
     this.step = saved?.step ?? 0;
     this.reference = r.steadyState !== undefined ? new Float64Array(saved?.reference ?? r.initial) : undefined;
     this.referenceStep = saved ? Math.floor(saved.step / r.output.everySteps) * r.output.everySteps : 0;
@@ -79,6 +84,11 @@ export class RunEngine {
     return this.sim.vertexCount;
   }
 
+  /** threads the current stepper runs on */
+  get threads(): number {
+    return this.sim.stepper.threads;
+  }
+
   get finished(): boolean {
     return this.step >= this.scenario.steps;
   }
@@ -98,7 +108,14 @@ export class RunEngine {
         const failed = this.moveSurface(false);
         if (failed) return failed;
       }
-      const ok = sim.stepper.step(this.step * r.dt);
+      let ok: boolean;
+      try {
+        ok = sim.stepper.step(this.step * r.dt);
+      } catch (e) {
+        if (!(e instanceof ThreadError)) throw e;
+        // the step did not happen: the state is still the one before it
+        return { kind: 'failed', reason: 'thread', step: this.step, message: `${e.message} at t=${(this.step * r.dt).toPrecision(6)} (step ${this.step})`, advice: 'Run it again, or with --threads 1.' };
+      }
       this.step++;
       taken++;
       if (!ok) return this.blowUp();

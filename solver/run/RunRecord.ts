@@ -62,6 +62,8 @@ export interface RunRecord {
   frames: { file: string; time: number; step: number }[];
   sessions: RunSession[];
   analysis: RunAnalysis;
+  /** threads asked for and used (a mesh too small for them uses fewer; results do not depend on it) */
+  threads?: { requested: number; used: number };
   growth?: { description: string; tolerance: number; updates: number; refinements: { time: number; step: number; from: number; to: number }[] };
   performance?: { steps: number; steppingSeconds: number; stepsPerSecond: number; vertexStepsPerSecond: number; solverIterationsPerStep?: number; stepperBytesPerVertex: number };
 }

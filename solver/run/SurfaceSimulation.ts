@@ -8,6 +8,7 @@ import { refineMidpoint } from '../mesh/refineMidpoint.ts';
 import { prolongField, type Refinement } from '../mesh/Refinement.ts';
 import { withPositions, type Mesh } from '../mesh/Mesh.ts';
 import { edgeLengthStats } from '../mesh/edgeLengthStats.ts';
+import type { ThreadTeam } from '../integrate/ThreadTeam.ts';
 
 const meanEdge = (mesh: Mesh) => edgeLengthStats(mesh).mean;
 
@@ -29,9 +30,13 @@ export class SurfaceSimulation {
   /** mean edge length at the start or the last refinement */
   edgeAtRefinement: number;
 
+  /** threads the steppers run on (the caller owns the team and ends it) */
+  private readonly team?: ThreadTeam;
+
   /** Set up at step 0 from the scenario's initial state, or at a saved state (refined and moved as it was). */
-  constructor(r: ResolvedScenario, saved?: SavedState) {
+  constructor(r: ResolvedScenario, saved?: SavedState, team?: ThreadTeam) {
     this.scenario = r;
+    this.team = team;
     this.system = r.system;
     this.growthReference = r.mesh.positions;
     if (saved?.growth) {
@@ -58,7 +63,7 @@ export class SurfaceSimulation {
 
   private stepperOptions() {
     const r = this.scenario;
-    return { scheme: r.scheme, dt: r.dt, solver: r.solver, tolerance: r.tolerance, growing: r.growth !== undefined };
+    return { scheme: r.scheme, dt: r.dt, solver: r.solver, tolerance: r.tolerance, growing: r.growth !== undefined, team: this.team };
   }
 
   /** Refine the system's mesh 1-to-4, carrying parameters, diffusion and the growth reference along. */

@@ -16,6 +16,9 @@ import { VERSION } from '../version.ts';
 import { textChecksum } from './meshChecksum.ts';
 import { LONG_RUN_SECONDS, RUN_CHUNK_MS } from '../defaults.ts';
 import { formatDuration } from './progress.ts';
+import { machineThreads, nodeThreadTeam } from './nodeThreads.ts';
+import { MIN_BLOCKS_PER_MEMBER, type ThreadTeam } from '../integrate/ThreadTeam.ts';
+import { REDUCTION_BLOCK } from '../integrate/wasm/stepperLayout.ts';
 
 export interface RunOptions {
   /** run directory to write (new run) */
@@ -28,6 +31,12 @@ export interface RunOptions {
   interruptAfterSteps?: number;
   /** asked between chunks of steps: true stops the run as if interrupted (state saved, resumable) */
   shouldStop?: () => boolean;
+  /** threads to step with, over the scenario's time.threads (a mesh too small for them uses fewer) */
+  threads?: number;
+  /** threads when neither `threads` nor the scenario says (default: the machine's cores; sweeps: 1) */
+  defaultThreads?: number;
+  /** called with the run's thread team once it is made (tests inject a failing thread through it) */
+  onTeam?: (team: ThreadTeam) => void;
   /** run however long the first chunk's rate says the run will take (otherwise a run estimated above LONG_RUN_SECONDS stops, resumable, and says so) */
   yes?: boolean;
   /** called once the run's record and first state are written, before the first step */
@@ -69,7 +78,11 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
   const nS = r.species.length;
   const { dt, steps: lastStep } = r;
   const growing = r.growth !== undefined;
-  const engine = new RunEngine(r, saved);
+  const requested = Math.max(1, options.threads ?? r.threads ?? options.defaultThreads ?? machineThreads());
+  const team = await nodeThreadTeam(usefulThreads(r, requested));
+  if (team) options.onTeam?.(team);
+  const engine = new RunEngine(r, saved, team);
+  record.threads = { requested, used: engine.threads };
   if (r.growth) record.growth ??= { description: r.growth.description, tolerance: r.growth.tolerance, updates: 0, refinements: [] };
   const updatesBefore = record.growth?.updates ?? 0;
   const area0 = meshArea(r.mesh);
@@ -173,7 +186,7 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
   process.on('SIGTERM', onSignal);
   for (const w of r.warnings) log(`warning: ${w}`);
   for (const note of r.meshNotes) log(`mesh: ${note}`);
-  log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${engine.vertexCount} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''} → ${final}`);
+  log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${engine.vertexCount} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''}, ${threadNote(requested, engine.threads)} → ${final}`);
   const progress = makeProgress(options.progress, log, engine.time, lastStep * dt);
   try {
     if (!saved) {
@@ -197,7 +210,8 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
       steppingSeconds += (performance.now() - chunkStart) / 1000;
       if (ev.kind === 'failed') {
         emit(engine.state, ev.step, false);
-        const where = ev.reason === 'blow-up' ? `The last good state (t=${(ev.step * dt).toPrecision(6)}) is in ${RUN_FILES.final} and ${RUN_FILES.state}.` : `The last state before it is in ${RUN_FILES.final} and ${RUN_FILES.state}.`;
+        const where = ev.reason === 'degenerate' ? `The last state before it is in ${RUN_FILES.final} and ${RUN_FILES.state}.` : `The last good state (t=${(ev.step * dt).toPrecision(6)}) is in ${RUN_FILES.final} and ${RUN_FILES.state}.`;
+        if (ev.reason === 'thread') return finish('failed', ev.step, `${ev.message}. ${where} Continue it with: placode run --resume ${final} (--threads 1 runs it on this thread alone)`);
         return finish(ev.reason, ev.step, `${ev.message}. ${where}${ev.advice ? ` ${ev.advice}` : ''}`);
       }
       if (options.shouldStop?.()) interrupted = true;
@@ -252,6 +266,7 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
     log(message);
     return { dir: final, reason: 'failed', time: lastSaved * dt, step: lastSaved, message };
   } finally {
+    team?.dispose();
     process.off('SIGINT', onSignal);
     process.off('SIGTERM', onSignal);
     progress.stop();
@@ -272,4 +287,16 @@ function swapDirectories(fresh: string, old: string): void {
   } catch (e) {
     throw new FileWriteError(old, e, ` (the new run is in ${fresh})`);
   }
+}
+
+/** How many threads step the run, and why fewer than asked for. */
+function threadNote(requested: number, used: number): string {
+  const threads = `${used} thread${used > 1 ? 's' : ''}`;
+  return used < requested ? `${threads} (of ${requested} asked for: a smaller mesh would not gain from more)` : threads;
+}
+
+/** Threads a run can use: a member needs MIN_BLOCKS_PER_MEMBER blocks of rows (on the largest surface a refining run may reach). */
+function usefulThreads(r: ResolvedScenario, requested: number): number {
+  const largest = r.growth?.refine ? r.growth.refine.maxVertices : r.mesh.positions.length / 3;
+  return Math.max(1, Math.min(requested, Math.floor(Math.ceil(largest / REDUCTION_BLOCK) / MIN_BLOCKS_PER_MEMBER)));
 }

@@ -85,6 +85,8 @@ export interface ResolvedScenario {
   steadyState?: number;
   solver: 'cg' | 'cholesky';
   tolerance: number;
+  /** threads the scenario asks for (time.threads); undefined: the runner's default */
+  threads?: number;
   explicitLimit?: ExplicitStepLimit;
   output: OutputPlan;
   analysis: AnalysisPlan;

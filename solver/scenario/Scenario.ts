@@ -1,4 +1,5 @@
 import { SWEEP_SECTION_SCHEMA, type SweepSpec } from '../sweep/Sweep.ts';
+import { MAX_THREADS } from '../defaults.ts';
 
 /**
  * A scenario file, as written by the user (JSON or YAML). Everything except
@@ -129,6 +130,8 @@ export interface TimeSpec {
   /** linear solver of the implicit–explicit scheme; auto: Cholesky up to 60k vertices, CG above */
   solver?: 'auto' | 'cg' | 'cholesky';
   tolerance?: number;
+  /** threads to step with; default: the machine's cores (one per run in a sweep); results are the same for any number */
+  threads?: number;
 }
 
 export interface OutputSpec {
@@ -232,6 +235,7 @@ export const SCENARIO_SCHEMA = {
         steadyState: { type: 'number', exclusiveMinimum: 0 },
         solver: { enum: ['auto', 'cg', 'cholesky'] },
         tolerance: { type: 'number', exclusiveMinimum: 0, maximum: 0.1 },
+        threads: { type: 'integer', minimum: 1, maximum: MAX_THREADS },
       },
     },
     sweep: SWEEP_SECTION_SCHEMA,

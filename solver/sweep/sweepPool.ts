@@ -6,6 +6,7 @@ import { runStatus, markFailed, type TaskOutcome } from './sweepTask.ts';
 import { markInterrupted } from '../run/runDirectory.ts';
 import { join } from 'node:path';
 import { progressMode } from '../run/progress.ts';
+import { SWEEP_RUN_THREADS } from '../defaults.ts';
 
 /** The worker thread's script: compiled (dist/) next to this file, or the sources through the TypeScript loader. */
 const WORKER = new URL(import.meta.url.endsWith('.js') ? './sweepWorker.js' : './sweepWorkerSource.mjs', import.meta.url);
@@ -40,8 +41,9 @@ export interface PoolOutcome {
 
 /**
  * `placode sweep run`: run every unfinished entry of a sweep on a pool of
- * worker threads, each running one scenario at a time (the solver is single
- * threaded, so N workers use N cores). Finished runs are skipped, so an
+ * worker threads, each running one scenario at a time on SWEEP_RUN_THREADS
+ * thread unless the scenario's time.threads says otherwise (so N workers use
+ * N cores). Finished runs are skipped, so an
  * interrupted sweep resumes where it stopped; Ctrl-C (or SIGTERM) asks every
  * worker to save its run's state, and a second Ctrl-C ends at once.
  */
@@ -64,7 +66,7 @@ export async function runSweepLocal(dirArg: string, options: PoolOptions = {}): 
     log(`all ${entries.length} runs of ${dirArg} are finished (${skipped} skipped)${options.retryFailed ? '' : '; --retry-failed runs failed ones again'}`);
     return outcome;
   }
-  log(`running ${todo.length} of ${entries.length} runs on ${workers} worker thread${workers > 1 ? 's' : ''}${skipped ? ` (${skipped} already finished)` : ''}`);
+  log(`running ${todo.length} of ${entries.length} runs on ${workers} worker thread${workers > 1 ? 's' : ''}${skipped ? ` (${skipped} already finished)` : ''}; each run steps on ${SWEEP_RUN_THREADS} thread unless its scenario sets time.threads (the pool already fills the cores)`);
   const mode = progressMode(options.progress);
   const bar = mode === 'bar' ? new cliProgress.SingleBar({ format: 'sweep |{bar}| {value}/{total} runs  {failed} failed  ETA {eta_formatted}', hideCursor: true, stream: process.stderr }, cliProgress.Presets.shades_classic) : undefined;
   bar?.start(todo.length, 0, { failed: 0 });

@@ -1,4 +1,4 @@
-import { appendFileSync, mkdirSync } from 'node:fs';
+import { appendFileSync, mkdirSync, readFileSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 import { packageFile } from '../packageRoot.ts';
@@ -7,6 +7,7 @@ import { readManifest } from './sweepPlan.ts';
 import { runStatus } from './sweepTask.ts';
 import { UsageError } from '../UsageError.ts';
 import { VERSION } from '../version.ts';
+import { SWEEP_RUN_THREADS } from '../defaults.ts';
 
 export interface SlurmOptions {
   partition?: string;
@@ -61,6 +62,16 @@ export function arrayChunks(indices: readonly number[], maxArraySize: number): {
   return [...chunks.entries()].sort((a, b) => a[0] - b[0]).map(([offset, ids]) => ({ offset, ids }));
 }
 
+/** Threads a run of the sweep steps with: its scenario's time.threads, or SWEEP_RUN_THREADS. */
+function runThreads(scenarioFile: string): number {
+  try {
+    const threads = (JSON.parse(readFileSync(scenarioFile, 'utf8')) as { time?: { threads?: unknown } }).time?.threads;
+    return typeof threads === 'number' && Number.isInteger(threads) && threads >= 1 ? threads : SWEEP_RUN_THREADS;
+  } catch {
+    return SWEEP_RUN_THREADS; // the task reports a missing or broken scenario itself
+  }
+}
+
 /** The cluster's MaxArraySize, from scontrol (undefined where scontrol does not answer). */
 function clusterMaxArraySize(): number | undefined {
   const r = spawnSync('scontrol', ['show', 'config'], { encoding: 'utf8', timeout: 10_000 });
@@ -97,6 +108,7 @@ export function writeSlurmArray(dirArg: string, o: SlurmOptions): { scripts: str
   const maxArraySize = o.maxArraySize ?? clusterMaxArraySize() ?? 1001;
   const chunks = arrayChunks(indices, maxArraySize);
   const scripts = chunks.map((chunk, c) => {
+    const cpus = Math.max(...chunk.ids.map((id) => runThreads(join(dir, entries[chunk.offset + id].scenario))));
     const lines = [
       '#!/bin/bash',
       `# Slurm job array for the sweep in ${dir}`,
@@ -107,7 +119,7 @@ export function writeSlurmArray(dirArg: string, o: SlurmOptions): { scripts: str
       `#SBATCH --array=${arraySpec(chunk.ids)}${o.maxParallel ? `%${o.maxParallel}` : ''}`,
       `#SBATCH --output=${join(slurmDir, 'logs', '%A_%a.out')}`,
       '#SBATCH --ntasks=1',
-      '#SBATCH --cpus-per-task=1',
+      `#SBATCH --cpus-per-task=${cpus}`,
       ...(o.partition ? [`#SBATCH --partition=${o.partition}`] : []),
       ...(o.time ? [`#SBATCH --time=${o.time}`] : []),
       ...(o.mem ? [`#SBATCH --mem=${o.mem}`] : []),

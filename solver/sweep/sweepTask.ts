@@ -8,6 +8,7 @@ import { writeFileAtomic } from '../io/meshFiles.ts';
 import { runScenarioFile, resumeRun, type RunOutcome } from '../run/runScenarioFile.ts';
 import { readManifest, SWEEP_FILES, type ManifestEntry } from './sweepPlan.ts';
 import { UsageError } from '../UsageError.ts';
+import { SWEEP_RUN_THREADS } from '../defaults.ts';
 
 /**
  * Where a run of a sweep stands, read from its run directory alone (so any
@@ -105,8 +106,8 @@ export async function runSweepTask(dirArg: string, index: number, options: TaskO
   try {
     const resumable = (before.state === 'interrupted' || before.state === 'running') && existsSync(join(run, RUN_FILES.state));
     outcome = resumable
-      ? await resumeRun(run, { progress: 'none', yes: true, log, shouldStop: options.shouldStop, onStarted: options.onStarted, command: ['sweep', 'task', dir, '--index', String(index)] })
-      : await runScenarioFile(join(dir, entry.scenario), { out: run, force: true, progress: 'none', yes: true, log, shouldStop: options.shouldStop, onStarted: options.onStarted, command: ['sweep', 'task', dir, '--index', String(index)] });
+      ? await resumeRun(run, { progress: 'none', yes: true, defaultThreads: SWEEP_RUN_THREADS, log, shouldStop: options.shouldStop, onStarted: options.onStarted, command: ['sweep', 'task', dir, '--index', String(index)] })
+      : await runScenarioFile(join(dir, entry.scenario), { out: run, force: true, progress: 'none', yes: true, defaultThreads: SWEEP_RUN_THREADS, log, shouldStop: options.shouldStop, onStarted: options.onStarted, command: ['sweep', 'task', dir, '--index', String(index)] });
   } catch (e) {
     const message = (e as Error).message;
     log(`failed: ${message}`);

@@ -78,7 +78,7 @@ function chunk(limit = Infinity): boolean {
   while (!ended && e.step - from < limit && !e.finished) {
     const ev = e.advance({ deadline: t0 + VIEWER_CHUNK_MS, maxSteps: limit - (e.step - from) });
     if (ev.kind === 'failed') {
-      stop(ev.reason, `${ev.message}. The state shown is the last good one (t=${e.time.toPrecision(6)}).${ev.advice ? ` ${ev.advice}` : ''}`);
+      stop(ev.reason === 'thread' ? 'blow-up' : ev.reason, `${ev.message}. The state shown is the last good one (t=${e.time.toPrecision(6)}).${ev.advice ? ` ${ev.advice}` : ''}`);
       ended = true;
     } else if (ev.kind === 'output') {
       if (ev.finish) {

@@ -1,7 +1,8 @@
 import { Option } from 'commander';
 import type { RegisterCommand } from './CommandContext.ts';
-import { PROGRESS_CHOICES, type ProgressChoice } from '../options.ts';
+import { PROGRESS_CHOICES, parseCount, type ProgressChoice } from '../options.ts';
 import { UsageError } from '../../UsageError.ts';
+import { MAX_THREADS } from '../../defaults.ts';
 
 export const registerRun: RegisterCommand = (program, ctx) => {
   program
@@ -13,8 +14,10 @@ export const registerRun: RegisterCommand = (program, ctx) => {
     .option('--force', 'replace an existing run directory')
     .option('--check', 'check the scenario and print the resolved plan without running')
     .option('--yes', 'run even if the first steps show it will take more than a day')
+    .option('--threads <n>', "threads to step with, over the scenario's time.threads (default: the machine's cores; small meshes use fewer; results are the same for any number)")
     .addOption(new Option('--progress <mode>', 'progress display').choices(PROGRESS_CHOICES).default('auto'))
-    .action(async (file: string | undefined, o: { out?: string; resume?: string; force?: boolean; check?: boolean; yes?: boolean; progress: ProgressChoice }) => {
+    .action(async (file: string | undefined, o: { out?: string; resume?: string; force?: boolean; check?: boolean; yes?: boolean; threads?: string; progress: ProgressChoice }) => {
+      const threads = parseCount(o.threads, '--threads', 1, MAX_THREADS);
       if (o.resume && (file || o.out)) throw new UsageError('--resume DIR continues a run as it was set up: give no scenario or --out with it');
       if (!o.resume && !file) throw new UsageError('give a scenario file (placode run scenario.yaml --out DIR) or --resume DIR');
       const { runScenarioFile, resumeRun, checkScenario } = await import('../../run/runScenarioFile.ts');
@@ -23,8 +26,8 @@ export const registerRun: RegisterCommand = (program, ctx) => {
         return;
       }
       const outcome = o.resume
-        ? await resumeRun(o.resume, { progress: o.progress, yes: o.yes, command: ctx.argv })
-        : await runScenarioFile(file!, { out: o.out, force: o.force, progress: o.progress, yes: o.yes, command: ctx.argv });
+        ? await resumeRun(o.resume, { progress: o.progress, yes: o.yes, threads, command: ctx.argv })
+        : await runScenarioFile(file!, { out: o.out, force: o.force, progress: o.progress, yes: o.yes, threads, command: ctx.argv });
       ctx.setExitCode(outcome.reason === 'blow-up' || outcome.reason === 'degenerate' ? 3 : outcome.reason === 'interrupted' ? 130 : outcome.reason === 'failed' ? 1 : 0);
     });
 };
