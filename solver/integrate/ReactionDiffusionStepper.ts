@@ -1,13 +1,14 @@
 import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
 import { csrAddDiagonal } from '../linalg/CsrMatrix.ts';
 import { SparseCholesky } from '../linalg/SparseCholesky.ts';
-import { ellPattern, ellValues, type EllPattern, type EllValues } from '../linalg/EllMatrix.ts';
+import { csrFromEll, ellPattern, ellValues, type EllPattern, type EllValues } from '../linalg/EllMatrix.ts';
 import { withPositions, type Mesh } from '../mesh/Mesh.ts';
 import { cotanStiffness } from '../fem/cotanStiffness.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
 import type { ReactionDiffusionSystem } from './ReactionDiffusionSystem.ts';
-import { diffusionStiffness } from './diffusionStiffness.ts';
-import { stepperLayout, type StepperLayout } from './wasm/stepperLayout.ts';
+import { diffusionStiffness, triangleMeans } from './diffusionStiffness.ts';
+import { fillGeometryCorners } from './wasm/geometryCorners.ts';
+import { CORNER_STRIDE, stepperLayout, type StepperLayout } from './wasm/stepperLayout.ts';
 import { stepperImports, stepperModule, CG_SCALARS, CG_SLOTS, type StepperExports } from './wasm/stepperModule.ts';
 import type { TeamKernel, ThreadTeam } from './ThreadTeam.ts';
 import { CG_MAX_ITERATIONS, CG_TOLERANCE } from '../defaults.ts';
@@ -70,8 +71,8 @@ export class ReactionDiffusionStepper {
   private readonly weightSet: number[];
   private readonly stateViews: [Float64Array, Float64Array];
   private current = 0;
-  /** kept for `setGeometry` (a growing surface): the CSR operators and per-triangle D */
-  private readonly moving?: { csr: CsrMatrix[]; triangleD: (Float64Array | undefined)[] };
+  /** kept for `setGeometry` of a growing surface with factorised solves: the CSR pattern the factors' matrices take */
+  private readonly moving?: { pattern: CsrMatrix };
   private mesh: Mesh;
   private readonly factors?: { factor: SparseCholesky; species: number[] }[];
   private readonly column?: Float64Array;
@@ -96,9 +97,9 @@ export class ReactionDiffusionStepper {
     const dt = this.options.dt;
     if (!(dt > 0) || !Number.isFinite(dt)) throw new Error(`time step must be a positive number, got ${dt}`);
     if (system.diffusion.length !== nS) throw new Error(`${system.diffusion.length} diffusion coefficients for ${nS} species`);
-    // operators assembled by the caller are read, never written: a growing surface reassembles into copies
+    // operators assembled by the caller are read, never written (a growing surface reassembles in the stepper's memory)
     const growing = this.options.growing;
-    const stiffness = assembled ? (growing ? { ...assembled.stiffness, values: assembled.stiffness.values.slice() } : assembled.stiffness) : cotanStiffness(mesh);
+    const stiffness = assembled ? assembled.stiffness : cotanStiffness(mesh);
     const mass = assembled ? assembled.mass : lumpedMass(mesh);
     const explicit = this.options.scheme === 'explicit';
     const cholesky = !explicit && this.options.solver === 'cholesky';
@@ -116,7 +117,7 @@ export class ReactionDiffusionStepper {
         this.coefficient[s] = dt * d;
       } else {
         kinds.push('field');
-        const { matrix, triangleD: coefficient } = diffusionStiffness(mesh, d, stiffness);
+        const { matrix, triangleD: coefficient } = growing ? { matrix: stiffness, triangleD: triangleMeans(mesh.triangles, d) } : diffusionStiffness(mesh, d, stiffness);
         this.weightSet.push(csrOf.length);
         csrOf.push(matrix);
         triangleD.push(coefficient);
@@ -124,13 +125,14 @@ export class ReactionDiffusionStepper {
       }
     });
     this.diffusionKinds = kinds;
-    if (growing) this.moving = { csr: csrOf, triangleD };
+    if (growing && cholesky) this.moving = { pattern: stiffness };
 
     // one memory for every array the kernels touch
     const usesPositions = kinetics.uses.x || kinetics.uses.y || kinetics.uses.z;
     this.layout = stepperLayout({
       n, nS, width: this.pattern.width, overflowCount: this.pattern.overflowColumns.length, sets: csrOf.length,
       fieldParameters: system.parameters.map((p) => typeof p !== 'number'), usesPositions, cg: !explicit && !cholesky,
+      growing: growing ? { corners: mesh.triangles.length, triangles: mesh.triangles.length / 3 } : undefined,
     });
     const L = this.layout;
     const members = team ? Math.max(1, Math.min(team.size, Math.floor(L.blocks / team.minBlocksPerMember))) : 1;
@@ -149,25 +151,34 @@ export class ReactionDiffusionStepper {
     for (let k = 0; k < overflowColumns.length; k++) overflowColumns[k] = 8 * this.pattern.overflowColumns[k];
     f64(L.mass, n).set(mass);
     this.sets = csrOf.map((_, g) => ({ diagonal: f64(L.diagonal[g], n), weights: f64(L.weights[g], n * L.shape.width), overflow: f64(L.overflow[g], L.shape.overflowCount) }));
-    this.fillWeights(csrOf);
     system.parameters.forEach((p, k) => { if (typeof p !== 'number') f64(L.fields[k]!, n).set(p); });
-    if (usesPositions) f64(L.positions, 3 * n).set(mesh.positions);
+    if (L.positions >= 0) f64(L.positions, 3 * n).set(mesh.positions);
+    if (L.moved >= 0) f64(L.moved, 3 * n).set(mesh.positions);
     this.stateViews = [f64(L.states[0], n * nS), f64(L.states[1], n * nS)];
     this.lastIterations = new Int32Array(nS);
-    if (L.shape.cg) this.fillInverseDiagonal();
-    if (cholesky) {
-      this.factors = this.buildFactors(csrOf);
-      this.column = new Float64Array(n);
-      this.solution = new Float64Array(n);
-    }
 
     const bytes = stepperModule({
-      layout: L, kinetics, weightSet: this.weightSet, coefficient: Array.from(this.coefficient), dt,
+      layout: L, kinetics, weightSet: this.weightSet, coefficient: Array.from(this.coefficient), dt, rowScaled: explicit,
       constants: system.parameters.map((p) => (typeof p === 'number' ? p : 0)), shared, pages,
     });
     this.module = new WebAssembly.Module(bytes as BufferSource);
     this.kernels = new WebAssembly.Instance(this.module, stepperImports(this.memory)).exports as unknown as StepperExports;
     if (shared && team) this.team = team;
+
+    if (growing) {
+      // every K and M of a moving surface, the first included, from the geometry kernel (a resumed run reassembles alike)
+      fillGeometryCorners(mesh, this.pattern, stiffness, i32(L.cornerOffsets, n + 1), i32(L.corners, CORNER_STRIDE * L.shape.growing!.corners));
+      triangleD.forEach((d, g) => { if (d) f64(L.triangleCoefficients[g], d.length).set(d); });
+      this.run('geometry', L.states[this.current]);
+    } else {
+      this.fillWeights(csrOf);
+      if (L.shape.cg) this.fillInverseDiagonal();
+    }
+    if (cholesky) {
+      this.factors = this.buildFactors(growing ? this.csrOperators() : csrOf);
+      this.column = new Float64Array(n);
+      this.solution = new Float64Array(n);
+    }
   }
 
   /** The surface as it is now (moved by `setGeometry`). */
@@ -315,27 +326,51 @@ export class ReactionDiffusionStepper {
    * basis functions with them, so Σ M U is carried unchanged by the motion:
    * U_i ← U_i·m_i(old)/m_i(new), then K and M are reassembled on the new
    * geometry. Dilution by growth is this transfer; nothing else is added.
-   * Everything is recomputed from the positions alone, so a run resumed from
-   * saved positions continues bit for bit. Needs `growing: true`.
+   * The geometry kernel does all of it row by row (threads split the rows);
+   * everything is recomputed from the positions alone, so a run resumed from
+   * saved positions continues bit for bit. Needs `growing: true`. A failing
+   * thread leaves the state and surface as they were and throws ThreadError.
+   * Returns the largest relative change of a vertex's area, |m(new)/m(old) − 1|.
    */
-  setGeometry(positions: Float64Array): void {
-    const mv = this.moving;
-    if (!mv) throw new Error('setGeometry: create the stepper with growing: true');
-    this.mesh = withPositions(this.mesh, positions);
-    const n = this.vertexCount, nS = this.speciesCount;
-    const u = this.state;
-    const mass = this.mass;
-    const old = mass.slice();
-    lumpedMass(this.mesh, mass);
-    for (let i = 0; i < n; i++) {
-      const f = old[i] / mass[i];
-      for (let s = 0; s < nS; s++) u[i * nS + s] *= f;
+  setGeometry(positions: Float64Array): number {
+    if (!this.options.growing) throw new Error('setGeometry: create the stepper with growing: true');
+    const L = this.layout;
+    const kept = this.previous;
+    kept.set(this.state);
+    new Float64Array(this.memory.buffer, L.moved, 3 * this.vertexCount).set(positions);
+    try {
+      this.run('geometry', L.states[this.current]);
+    } catch (e) {
+      // a thread failed half-way: the state as it was, the surface not moved (the run stops here)
+      this.state.set(kept);
+      new Float64Array(this.memory.buffer, L.positions, 3 * this.vertexCount).set(this.mesh.positions);
+      throw e;
     }
-    mv.csr.forEach((k, g) => cotanStiffness(this.mesh, k, mv.triangleD[g]));
-    this.fillWeights(mv.csr);
-    if (this.layout.positions >= 0) new Float64Array(this.memory.buffer, this.layout.positions, 3 * n).set(positions);
-    if (this.layout.shape.cg) this.fillInverseDiagonal();
-    if (this.factors) for (const { factor, species } of this.factors) factor.refactor(this.implicitMatrix(species[0], mv.csr));
+    this.mesh = withPositions(this.mesh, positions);
+    if (this.factors) {
+      const csr = this.csrOperators();
+      for (const { factor, species } of this.factors) factor.refactor(this.implicitMatrix(species[0], csr));
+    }
+    const partials = new Float64Array(this.memory.buffer, L.partials, L.blocks * L.slots);
+    let change = 0;
+    for (let b = 0; b < L.blocks; b++) change = Math.max(change, partials[b * L.slots]);
+    return change;
+  }
+
+  /**
+   * Whether moving the surface to `positions` keeps every triangle on its side
+   * with at least `collapseRatio` of its area and finite (a sweep over the
+   * rows, split among the team). Needs `growing: true`.
+   */
+  checkMove(positions: Float64Array, collapseRatio: number): boolean {
+    if (!this.options.growing) throw new Error('checkMove: create the stepper with growing: true');
+    new Float64Array(this.memory.buffer, this.layout.moved, 3 * this.vertexCount).set(positions);
+    return this.run('checkMove', collapseRatio * collapseRatio) === 0;
+  }
+
+  /** The weight sets as CSR matrices (a growing surface's factorised solves). */
+  private csrOperators(): CsrMatrix[] {
+    return this.sets.map((v) => csrFromEll(this.pattern, v, this.moving!.pattern));
   }
 
   /** ELL values of every weight set: K (rows scaled by 1/m for the explicit scheme) into the memory. */

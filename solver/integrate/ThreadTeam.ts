@@ -35,7 +35,7 @@ const SPIN = 20_000;
 const CONTROL_SLOTS = 16 + 64;
 const MESSAGE_BYTES = 512;
 /** Kernel names in the order their ids travel in the control block. */
-export const TEAM_KERNELS = ['explicit', 'rhs', 'cgStart', 'cgProduct', 'cgUpdate', 'cgDirection', 'cgTotal', 'cgShift'] as const;
+export const TEAM_KERNELS = ['explicit', 'rhs', 'cgStart', 'cgProduct', 'cgUpdate', 'cgDirection', 'cgTotal', 'cgShift', 'geometry', 'checkMove'] as const;
 export type TeamKernel = (typeof TEAM_KERNELS)[number];
 
 /**

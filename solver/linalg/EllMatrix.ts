@@ -102,6 +102,19 @@ export function ellValues(m: EllPattern, a: CsrMatrix, rowScale?: Float64Array, 
   return { diagonal, weights, overflow };
 }
 
+/** The CSR matrix (pattern of `like`, the matrix the layout was built from) holding ELL values `v`. */
+export function csrFromEll(m: EllPattern, v: EllValues, like: CsrMatrix): CsrMatrix {
+  const { rowOffsets: ro } = like;
+  const values = new Float64Array(like.columns.length);
+  for (let i = 0; i < m.rows; i++) {
+    for (let p = ro[i]; p < ro[i + 1]; p++) {
+      const at = m.slotMap[p];
+      values[p] = at === DIAGONAL ? v.diagonal[i] : at >= 0 ? v.weights[at] : v.overflow[-1 - at];
+    }
+  }
+  return { ...like, values };
+}
+
 /** The layout alone (drops the slot map once all values are filled). */
 export function ellLayout(m: EllPattern): EllLayout {
   const { rows, width, stride, columns, overflowOffsets, overflowColumns } = m;

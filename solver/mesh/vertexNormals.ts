@@ -20,7 +20,7 @@ export function vertexNormals(mesh: Mesh, out?: Float64Array): Float64Array {
     n[c] += cx; n[c + 1] += cy; n[c + 2] += cz;
   }
   for (let i = 0; i < n.length; i += 3) {
-    const l = Math.hypot(n[i], n[i + 1], n[i + 2]);
+    const l = Math.sqrt(n[i] * n[i] + n[i + 1] * n[i + 1] + n[i + 2] * n[i + 2]);
     if (l > 0) { n[i] /= l; n[i + 1] /= l; n[i + 2] /= l; }
   }
   return n;

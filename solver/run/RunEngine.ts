@@ -113,8 +113,7 @@ export class RunEngine {
         ok = sim.stepper.step(this.step * r.dt);
       } catch (e) {
         if (!(e instanceof ThreadError)) throw e;
-        // the step did not happen: the state is still the one before it
-        return { kind: 'failed', reason: 'thread', step: this.step, message: `${e.message} at t=${(this.step * r.dt).toPrecision(6)} (step ${this.step})`, advice: 'Run it again, or with --threads 1.' };
+        return this.threadFailed(e);
       }
       this.step++;
       taken++;
@@ -145,10 +144,17 @@ export class RunEngine {
         this.onRefined?.({ step: this.step, from: before, to: sim.vertexCount });
       }
     } catch (e) {
+      if (e instanceof ThreadError) return this.threadFailed(e);
       if (!(e instanceof GrowthDegenerationError)) throw e;
       return { kind: 'failed', reason: 'degenerate', step: this.step, message: e.message, advice: '' };
     }
     return undefined;
+  }
+
+  /** A thread failed in a step or a geometry update: neither happened, the state is still the one before it. */
+  private threadFailed(e: ThreadError): EngineEvent {
+    const t = (this.step * this.scenario.dt).toPrecision(6);
+    return { kind: 'failed', reason: 'thread', step: this.step, message: `${e.message} at t=${t} (step ${this.step})`, advice: 'Run it again, or with --threads 1.' };
   }
 
   /** A step produced NaN or infinity: name where, and go back to the state before it. */

@@ -92,6 +92,74 @@ describe('generated WebAssembly kernels', () => {
   });
 });
 
+describe('the geometry kernel of a moving surface', () => {
+  /** positions moved by a smooth, non-affine map */
+  const moved = (mesh: Mesh) => mesh.positions.map((x, q) => x * (1.1 + 0.05 * Math.sin(3 * mesh.positions[q - (q % 3)] + (q % 3))));
+
+  it('carries U by m(old)/m(new) and steps as a stepper built on the moved surface (cotanStiffness, lumpedMass), rows past the ELL width included', () => {
+    for (const mesh of [icosphere(6, 1), fan()]) {
+      const nS = 2, u = start(mesh, nS), dt = 0.01;
+      const growing = new ReactionDiffusionStepper({ mesh, kinetics: kinetics2, parameters: [0.037, 0.06], diffusion: [2e-3, 1e-3] }, { scheme: 'explicit', dt, growing: true });
+      growing.setState(u);
+      const m0 = lumpedMass(mesh);
+      const p1 = moved(mesh);
+      growing.setGeometry(p1);
+      const movedMesh = makeMesh(p1, mesh.triangles);
+      const m1 = lumpedMass(movedMesh);
+      // the mass: the same sum of triangle areas over three, in another order: a few roundings apart
+      for (let i = 0; i < m1.length; i++) expect(Math.abs(growing.mass[i] - m1[i]) / m1[i]).toBeLessThan(1e-14);
+      const carried = u.map((v, q) => (v * m0[Math.floor(q / nS)]) / m1[Math.floor(q / nS)]);
+      for (let q = 0; q < u.length; q++) expect(Math.abs(growing.state[q] - carried[q])).toBeLessThan(1e-14);
+      const before = growing.state.slice();
+      expect(growing.step(0.3)).toBe(true);
+      const ref = referenceExplicit(movedMesh, kinetics2, [0.037, 0.06], [2e-3, 1e-3], before, dt, 0.3);
+      for (let q = 0; q < ref.length; q++) expect(Math.abs(growing.state[q] - ref[q]), `value ${q}`).toBeLessThan(1e-14);
+    }
+  });
+
+  it('checkMove finds a triangle turned over, one shrunk below the ratio, a non-finite one, and passes a fair move', async () => {
+    const mesh = icosphere(8, 1);
+    for (const t of [undefined, await team(2)]) {
+      const st = new ReactionDiffusionStepper({ mesh, kinetics: kinetics2, parameters: [0.037, 0.06], diffusion: [2e-3, 1e-3] }, { scheme: 'explicit', dt: 1e-3, growing: true, team: t });
+      expect(st.checkMove(moved(mesh), 1e-3)).toBe(true);
+      // the last triangle's first vertex reflected through the midpoint of its opposite edge turns it over
+      const over = mesh.positions.slice(), last = mesh.triangles.length - 3;
+      const [a, b, c] = [0, 1, 2].map((k) => 3 * mesh.triangles[last + k]);
+      for (let d = 0; d < 3; d++) over[a + d] = over[b + d] + over[c + d] - over[a + d];
+      expect(st.checkMove(over, 1e-3)).toBe(false);
+      // a triangle shrunk to 1e-4 of its area (vertices of triangle 0 pulled to their centroid)
+      const shrunk = mesh.positions.slice(), tri = mesh.triangles;
+      for (let d = 0; d < 3; d++) {
+        const c = (shrunk[3 * tri[0] + d] + shrunk[3 * tri[1] + d] + shrunk[3 * tri[2] + d]) / 3;
+        for (let k = 0; k < 3; k++) shrunk[3 * tri[k] + d] = c + 1e-2 * (shrunk[3 * tri[k] + d] - c);
+      }
+      expect(st.checkMove(shrunk, 1e-3)).toBe(false);
+      expect(st.checkMove(shrunk, 1e-5)).toBe(true);
+      const broken = mesh.positions.slice();
+      broken[3 * 7] = NaN;
+      expect(st.checkMove(broken, 1e-3)).toBe(false);
+    }
+  });
+
+  it('a D-weighted stiffness and the CG preconditioner follow the surface: the same steps as a stepper built on the moved surface', () => {
+    const mesh = icosphere(8, 1);
+    const field = new Float64Array(mesh.positions.length / 3).map((_, i) => 0.02 * (1.5 + mesh.positions[3 * i]));
+    const system = { mesh, kinetics: kinetics3, parameters: [], diffusion: [0.01, 0, field] };
+    for (const options of [{ scheme: 'explicit', dt: 1e-3 }, { scheme: 'imex', dt: 0.1, tolerance: 1e-13 }, { scheme: 'imex', dt: 0.1, solver: 'cholesky' }] as StepperOptions[]) {
+      const growing = new ReactionDiffusionStepper(system, { ...options, growing: true });
+      const p1 = moved(mesh);
+      growing.setGeometry(p1);
+      const fresh = new ReactionDiffusionStepper({ ...system, mesh: makeMesh(p1, mesh.triangles) }, options);
+      const u = start(mesh, 3);
+      growing.setState(u);
+      fresh.setState(u);
+      for (let k = 0; k < 3; k++) { growing.step(0.1 * k); fresh.step(0.1 * k); }
+      // explicit and Cholesky: round-off of the reassembly; CG: both converge to 1e-13 of ‖b‖
+      for (let q = 0; q < u.length; q++) expect(Math.abs(growing.state[q] - fresh.state[q]), `${options.scheme} ${options.solver ?? ''} value ${q}`).toBeLessThan(1e-11);
+    }
+  });
+});
+
 describe('threads', () => {
   const cases: [string, () => { mesh: Mesh; kinetics: CompiledKinetics; parameters: number[]; diffusion: (number | Float64Array)[] }, StepperOptions][] = [
     ['explicit, two species', () => ({ mesh: icosphere(20, 1), kinetics: kinetics2, parameters: [0.037, 0.06], diffusion: [2e-5, 1e-5] }), { scheme: 'explicit', dt: 0.5 }],
@@ -100,6 +168,11 @@ describe('threads', () => {
       return { mesh, kinetics: kinetics2, parameters: [0.037, 0.06], diffusion: [2e-5, new Float64Array(mesh.positions.length / 3).map((_, i) => 1e-5 * (1.5 + mesh.positions[3 * i]))] };
     }, { scheme: 'imex', dt: 1 }],
     ['implicit–explicit CG, three species, one still', () => ({ mesh: icosphere(20, 1), kinetics: kinetics3, parameters: [], diffusion: [0.01, 0, 0.02] }), { scheme: 'imex', dt: 0.1 }],
+    ['explicit on a growing surface', () => ({ mesh: icosphere(20, 1), kinetics: kinetics2, parameters: [0.037, 0.06], diffusion: [2e-5, 1e-5] }), { scheme: 'explicit', dt: 0.5, growing: true }],
+    ['implicit–explicit CG on a growing surface, a field diffusion', () => {
+      const mesh = icosphere(20, 1);
+      return { mesh, kinetics: kinetics2, parameters: [0.037, 0.06], diffusion: [2e-5, new Float64Array(mesh.positions.length / 3).map((_, i) => 1e-5 * (1.5 + mesh.positions[3 * i]))] };
+    }, { scheme: 'imex', dt: 1, growing: true }],
   ];
   for (const [name, system, options] of cases) {
     it(`${name}: 1, 2 and 3 threads give the same state to the bit`, async () => {
@@ -109,7 +182,10 @@ describe('threads', () => {
         const st = new ReactionDiffusionStepper(sys, { ...options, team: await team(size) });
         expect(st.threads).toBe(size); // 4002 vertices: 4 blocks, shared out
         st.setState(start(sys.mesh, sys.kinetics.species.length));
-        for (let k = 0; k < 15; k++) expect(st.step(k * options.dt)).toBe(true);
+        for (let k = 0; k < 15; k++) {
+          if (options.growing && k % 5 === 4) st.setGeometry(sys.mesh.positions.map((x, q) => x * (1 + 0.002 * k * (1 + (q % 3)))));
+          expect(st.step(k * options.dt)).toBe(true);
+        }
         results.push(st.state.slice());
       }
       for (const r of results.slice(1)) expect(r.every((v, q) => Object.is(v, results[0][q]))).toBe(true);
@@ -160,6 +236,20 @@ analysis: {modes: 0}
     expect(ev).toMatchObject({ kind: 'failed', reason: 'thread', step: 3 });
     expect((ev as { message: string }).message).toMatch(/^worker thread 1 failed: a fault injected for a test at t=3\.00000 \(step 3\)/);
     expect(engine.state.every((v, q) => Object.is(v, good[q]))).toBe(true);
+  });
+
+  it('a thread that throws in a geometry update leaves the state and the surface as they were', async () => {
+    const mesh = icosphere(20, 1);
+    const st = new ReactionDiffusionStepper({ mesh, kinetics: kinetics2, parameters: [0.037, 0.06], diffusion: [2e-5, 1e-5] }, { scheme: 'explicit', dt: 0.5, growing: true, team: await team(2) });
+    st.setState(start(mesh, 2));
+    st.step(0);
+    const state = st.state.slice(), mass = st.mass.slice();
+    (st as unknown as { team: ThreadTeam }).team.failNext(1);
+    expect(() => st.setGeometry(mesh.positions.map((x) => 1.1 * x))).toThrow(/worker thread 1 failed: a fault injected for a test/);
+    expect(st.state.every((v, q) => Object.is(v, state[q]))).toBe(true);
+    expect(st.surface.positions).toBe(mesh.positions);
+    // the stepper is not used again after a failure; a new one on the kept state continues the run
+    expect(mass.every((v) => v > 0)).toBe(true);
   });
 
   it('in a run, a failing thread ends it as failed, resumable, with the last good state written', async () => {

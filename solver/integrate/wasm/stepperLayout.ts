@@ -23,7 +23,12 @@ export interface StepperShape {
   usesPositions: boolean;
   /** conjugate-gradient work arrays */
   cg: boolean;
+  /** a moving surface: the corner table the geometry kernel reassembles K and M from (see geometryCorners) */
+  growing?: { corners: number; triangles: number };
 }
+
+/** Int32 entries per corner of the corner table: j, k (byte offsets of their positions), slots of ij and ik, triangle (byte offset of its coefficient). */
+export const CORNER_STRIDE = 5;
 
 export interface StepperLayout {
   shape: StepperShape;
@@ -40,6 +45,13 @@ export interface StepperLayout {
   states: [number, number];
   fields: (number | undefined)[];
   positions: number;
+  /** the corner table of a moving surface (−1 otherwise): row i's corners are cornerOffsets[i] … cornerOffsets[i+1] − 1 */
+  cornerOffsets: number;
+  corners: number;
+  /** a moving surface's next positions (checked, then taken by the geometry kernel), or −1 */
+  moved: number;
+  /** per weight set: its per-triangle coefficient (D-weighted sets of a moving surface), or −1 */
+  triangleCoefficients: number[];
   inverseDiagonal: number;
   r: number;
   p: number;
@@ -72,7 +84,11 @@ export function stepperLayout(shape: StepperShape): StepperLayout {
     mass: take(8 * n),
     states: [take(8 * n * nS), take(8 * n * nS)],
     fields: shape.fieldParameters.map((f) => (f ? take(8 * n) : undefined)),
-    positions: shape.usesPositions ? take(24 * n) : -1,
+    positions: shape.usesPositions || shape.growing ? take(24 * n) : -1,
+    cornerOffsets: shape.growing ? take(4 * (n + 1)) : -1,
+    corners: shape.growing ? take(4 * CORNER_STRIDE * shape.growing.corners) : -1,
+    moved: shape.growing ? take(24 * n) : -1,
+    triangleCoefficients: [],
     inverseDiagonal: shape.cg ? take(8 * n * nS) : -1,
     r: shape.cg ? take(8 * n * nS) : -1,
     p: shape.cg ? take(8 * n * nS) : -1,
@@ -83,8 +99,10 @@ export function stepperLayout(shape: StepperShape): StepperLayout {
   };
   for (let g = 0; g < sets; g++) {
     layout.diagonal.push(take(8 * n));
-    layout.weights.push(take(8 * n * width));
-    layout.overflow.push(take(8 * Math.max(1, overflowCount)));
+    // the overflow right after the block, so a slot k (block) or n·width + o (overflow o) addresses either
+    layout.weights.push(take(8 * (n * width + Math.max(1, overflowCount))));
+    layout.overflow.push(layout.weights[g] + 8 * n * width);
+    layout.triangleCoefficients.push(shape.growing && g > 0 ? take(8 * shape.growing.triangles) : -1);
   }
   layout.bytes = at;
   return layout;

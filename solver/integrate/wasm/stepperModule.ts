@@ -2,7 +2,7 @@ import type { CompiledKinetics } from '../../kinetics/compileKinetics.ts';
 import { parameterPlaceholder, speciesPlaceholder } from '../../kinetics/compileKinetics.ts';
 import { F64, FunctionBuilder, I32, Op, Simd, V128, WasmModule } from './WasmModule.ts';
 import { emitFormula, MATH_IMPORTS, type MathImport } from './formulaToWasm.ts';
-import { REDUCTION_BLOCK, type StepperLayout } from './stepperLayout.ts';
+import { CORNER_STRIDE, REDUCTION_BLOCK, type StepperLayout } from './stepperLayout.ts';
 
 /**
  * The kernels of one stepper, generated as a WebAssembly module over its
@@ -26,6 +26,13 @@ import { REDUCTION_BLOCK, type StepperLayout } from './stepperLayout.ts';
  *   cgStart(b0, b1, X), cgProduct(b0, b1), cgUpdate(b0, b1, X), cgDirection(b0, b1),
  *   cgTotal(b0, b1, X), cgShift(b0, b1, X): the sweeps of the fused Jacobi-CG solve of
  *       (diag(m) + c·K)·x = m·g for every species, x (= X) starting at g
+ *   checkMove(b0, b1, r²) → 1 if a triangle of the moved surface (positions at
+ *       `moved`) turns over, or its area falls below r times its area now, or is
+ *       not finite: each triangle looked at once, in the row of its first vertex
+ *   geometry(b0, b1, U): a moving surface's rows of K (every weight set) and
+ *       lumped M from the moved positions (which become the positions), gathered over each row's corners; U scaled
+ *       by m(old)/m(new); the weights scaled by 1/m (explicit) or the Jacobi
+ *       diagonal refreshed (CG); per block, the largest |m(new)/m(old) − 1|
  * Scalars the sweeps need (α, β, shift per species) are read from `scalars`;
  * their sums go to `partials[block·slots + slot]`.
  */
@@ -39,6 +46,8 @@ export interface StepperKernelPlan {
   dt: number;
   /** constant parameter values (field parameters: 0, read per vertex) */
   constants: readonly number[];
+  /** the weights hold M⁻¹K (explicit scheme) rather than K */
+  rowScaled: boolean;
   /** a memory shared between threads */
   shared: boolean;
   pages: number;
@@ -53,6 +62,8 @@ export interface StepperExports {
   cgDirection(b0: number, b1: number): void;
   cgTotal(b0: number, b1: number, X: number): void;
   cgShift(b0: number, b1: number, X: number): void;
+  geometry(b0: number, b1: number, U: number): void;
+  checkMove(b0: number, b1: number, ratioSquared: number): number;
 }
 
 /** Partial-sum slots of each CG sweep: start rz rr bb sb, product pq, update rz rr, total area mx. */
@@ -349,7 +360,188 @@ export function stepperModule(plan: StepperKernelPlan): Uint8Array {
   }
   if (L.shape.cg) addCgSweeps(m, plan);
   else for (const name of ['cgStart', 'cgProduct', 'cgUpdate', 'cgDirection', 'cgTotal', 'cgShift']) m.addFunction(new FunctionBuilder([I32, I32, I32], []), name);
+  if (L.shape.growing) {
+    addGeometry(m, plan);
+    addCheckMove(m, plan);
+  } else {
+    m.addFunction(new FunctionBuilder([I32, I32, I32], []), 'geometry');
+    const stub = new FunctionBuilder([I32, I32, F64], [I32]);
+    stub.i32(0);
+    m.addFunction(stub, 'checkMove');
+  }
   return m.bytes();
+}
+
+/**
+ * geometry(b0, b1, U): for each row i, its K entries and lumped mass from the
+ * triangles around vertex i (the corner table: for each corner, the other two
+ * vertices j, k in the triangle's order and the slots of ij and ik in row i).
+ * A triangle with twice-area |n| = |(x_j − x_i) × (x_k − x_i)| adds |n|/6 to
+ * m_i and, with w = ½·D_t/|n| (D_t = 1 for K), cot_j·|n|·w to the weight of ik
+ * (negated), cot_k·|n|·w to that of ij (negated), and both to the diagonal —
+ * the cotangent formula of cotanStiffness, summed per row rather than
+ * scattered per triangle, so rows are independent and a team splits them.
+ */
+function addGeometry(m: WasmModule, plan: StepperKernelPlan): void {
+  const L = plan.layout, nS = L.shape.nS, W = L.shape.width, sets = L.diagonal.length;
+  const w = new KernelWriter(plan, [I32, I32, I32], []);
+  const f = w.f;
+  const sub = (a: number, b: number, out: number) => f.get(a).get(b).op(Op.f64Sub).set(out);
+  const largest = w.blockSums(1);
+  const change = largest.sums[0];
+  w.rows((row) => {
+    const ov0 = f.local(I32), ov1 = f.local(I32), o = f.local(I32);
+    const hasOverflow = L.shape.overflowCount > 0;
+    if (hasOverflow) {
+      f.get(row.i).i32(4).op(Op.i32Mul).loadI32(L.overflowOffsets).i32(8).op(Op.i32Mul).set(ov0);
+      f.get(row.i).i32(4).op(Op.i32Mul).loadI32(L.overflowOffsets + 4).i32(8).op(Op.i32Mul).set(ov1);
+    }
+    /** for every overflow entry of the row (o its byte offset into an overflow array) */
+    const overflowLoop = (body: () => void) => {
+      if (!hasOverflow) return;
+      f.get(ov0).set(o);
+      f.block().loop();
+      f.get(o).get(ov1).op(Op.i32GeS).brIf(1);
+      body();
+      f.get(o).i32(8).op(Op.i32Add).set(o);
+      f.br(0).end().end();
+    };
+    for (let g = 0; g < sets; g++) for (let k = 0; k < W; k++) f.get(row.rwf).f64(0).storeF64(L.weights[g] + 8 * k);
+    overflowLoop(() => { for (let g = 0; g < sets; g++) f.get(o).f64(0).storeF64(L.overflow[g]); });
+    const diagonal = Array.from({ length: sets }, () => { const d = f.local(F64); f.f64(0).set(d); return d; });
+    const area = f.local(F64);
+    f.f64(0).set(area);
+    const p = f.local(I32);
+    f.get(row.i).i32(24).op(Op.i32Mul).set(p);
+    const [xi, yi, zi] = [0, 1, 2].map((d) => { const x = f.local(F64); f.get(p).loadF64(L.moved + 8 * d).set(x); return x; });
+    const e = f.local(I32), stop = f.local(I32), at = f.local(I32);
+    f.get(row.i).i32(4).op(Op.i32Mul).loadI32(L.cornerOffsets).set(e);
+    f.get(row.i).i32(4).op(Op.i32Mul).loadI32(L.cornerOffsets + 4).set(stop);
+    f.block().loop();
+    f.get(e).get(stop).op(Op.i32GeS).brIf(1);
+    f.get(e).i32(4 * CORNER_STRIDE).op(Op.i32Mul).set(at);
+    const [pj, pk, sj, sk, t8] = [0, 1, 2, 3, 4].map((c) => { const x = f.local(I32); f.get(at).loadI32(L.corners + 4 * c).set(x); return x; });
+    const ej = [0, 1, 2].map(() => f.local(F64)), ek = [0, 1, 2].map(() => f.local(F64)), djk = [0, 1, 2].map(() => f.local(F64));
+    [xi, yi, zi].forEach((xd, d) => {
+      const xj = f.local(F64), xk = f.local(F64);
+      f.get(pj).loadF64(L.moved + 8 * d).set(xj);
+      f.get(pk).loadF64(L.moved + 8 * d).set(xk);
+      sub(xj, xd, ej[d]);
+      sub(xk, xd, ek[d]);
+      sub(xk, xj, djk[d]);
+    });
+    // |n| = |ej × ek|, twice the triangle's area
+    const twice = f.local(F64);
+    const normal = ([[1, 2], [2, 0], [0, 1]] as const).map(([a, b]) => {
+      const c = f.local(F64);
+      f.get(ej[a]).get(ek[b]).op(Op.f64Mul).get(ej[b]).get(ek[a]).op(Op.f64Mul).op(Op.f64Sub).set(c);
+      return c;
+    });
+    f.get(normal[0]).get(normal[0]).op(Op.f64Mul).get(normal[1]).get(normal[1]).op(Op.f64Mul).op(Op.f64Add).get(normal[2]).get(normal[2]).op(Op.f64Mul).op(Op.f64Add);
+    f.op(Op.f64Sqrt).set(twice);
+    f.get(area).get(twice).op(Op.f64Add).set(area);
+    // (x_i − x_j)·(x_k − x_j) = −ej·djk, and (x_i − x_k)·(x_j − x_k) = ek·djk
+    const dotJ = f.local(F64), dotK = f.local(F64), half = f.local(F64);
+    const dot = (a: number[], b: number[]) => { f.get(a[0]).get(b[0]).op(Op.f64Mul).get(a[1]).get(b[1]).op(Op.f64Mul).op(Op.f64Add).get(a[2]).get(b[2]).op(Op.f64Mul).op(Op.f64Add); };
+    dot(ej, djk); f.op(Op.f64Neg).set(dotJ);
+    dot(ek, djk); f.set(dotK);
+    f.f64(0.5).get(twice).op(Op.f64Div).set(half);
+    for (let g = 0; g < sets; g++) {
+      const wg = f.local(F64), cj = f.local(F64), ck = f.local(F64);
+      if (L.triangleCoefficients[g] >= 0) f.get(half).get(t8).loadF64(L.triangleCoefficients[g]).op(Op.f64Mul).set(wg);
+      else f.get(half).set(wg);
+      f.get(dotJ).get(wg).op(Op.f64Mul).set(cj);
+      f.get(dotK).get(wg).op(Op.f64Mul).set(ck);
+      f.get(sj).get(sj).loadF64(L.weights[g]).get(ck).op(Op.f64Sub).storeF64(L.weights[g]);
+      f.get(sk).get(sk).loadF64(L.weights[g]).get(cj).op(Op.f64Sub).storeF64(L.weights[g]);
+      f.get(diagonal[g]).get(cj).get(ck).op(Op.f64Add).op(Op.f64Add).set(diagonal[g]);
+    }
+    f.get(e).i32(1).op(Op.i32Add).set(e);
+    f.br(0).end().end();
+    // the moved position becomes the position (no other row reads positions in this sweep)
+    for (const [d, x] of [xi, yi, zi].entries()) f.get(p).get(x).storeF64(L.positions + 8 * d);
+    // the new mass, and the state carried: U_i ← U_i·m_i(old)/m_i(new)
+    const mass = f.local(F64), ratio = f.local(F64);
+    f.get(area).f64(6).op(Op.f64Div).set(mass);
+    f.get(row.i8).loadF64(L.mass).get(mass).op(Op.f64Div).set(ratio);
+    // the largest relative change of a vertex's area, |m(new)/m(old) − 1|, per block
+    f.get(change).get(mass).get(row.i8).loadF64(L.mass).op(Op.f64Div).f64(1).op(Op.f64Sub).op(Op.f64Abs).op(Op.f64Max).set(change);
+    f.get(row.i8).get(mass).storeF64(L.mass);
+    for (let s = 0; s < nS; s++) {
+      f.get(2).get(row.b).op(Op.i32Add);
+      f.get(2).get(row.b).op(Op.i32Add).loadF64(8 * s).get(ratio).op(Op.f64Mul);
+      f.storeF64(8 * s);
+    }
+    if (plan.rowScaled) {
+      const scale = f.local(F64);
+      f.f64(1).get(mass).op(Op.f64Div).set(scale);
+      for (let g = 0; g < sets; g++) {
+        f.get(diagonal[g]).get(scale).op(Op.f64Mul).set(diagonal[g]);
+        for (let k = 0; k < W; k++) f.get(row.rwf).get(row.rwf).loadF64(L.weights[g] + 8 * k).get(scale).op(Op.f64Mul).storeF64(L.weights[g] + 8 * k);
+      }
+      overflowLoop(() => { for (let g = 0; g < sets; g++) f.get(o).get(o).loadF64(L.overflow[g]).get(scale).op(Op.f64Mul).storeF64(L.overflow[g]); });
+    }
+    for (let g = 0; g < sets; g++) f.get(row.i8).get(diagonal[g]).storeF64(L.diagonal[g]);
+    if (L.shape.cg) {
+      for (let s = 0; s < nS; s++) {
+        const g = plan.weightSet[s];
+        f.get(row.b).f64(1).get(mass);
+        if (g >= 0) f.f64(plan.coefficient[s]).get(diagonal[g]).op(Op.f64Mul).op(Op.f64Add);
+        f.op(Op.f64Div).storeF64(L.inverseDiagonal + 8 * s);
+      }
+    }
+  }, largest.reset, largest.store);
+  m.addFunction(f, 'geometry');
+}
+
+/** checkMove(b0, b1, r²): see the kernel list. Triangle (i, j, k) is looked at in row i when i < j and i < k. */
+function addCheckMove(m: WasmModule, plan: StepperKernelPlan): void {
+  const L = plan.layout;
+  const w = new KernelWriter(plan, [I32, I32, F64], [I32]);
+  const f = w.f;
+  const flag = f.local(I32);
+  f.i32(0).set(flag);
+  w.rows((row) => {
+    const p = f.local(I32), e = f.local(I32), stop = f.local(I32), at = f.local(I32), pj = f.local(I32), pk = f.local(I32);
+    f.get(row.i).i32(24).op(Op.i32Mul).set(p);
+    f.get(row.i).i32(4).op(Op.i32Mul).loadI32(L.cornerOffsets).set(e);
+    f.get(row.i).i32(4).op(Op.i32Mul).loadI32(L.cornerOffsets + 4).set(stop);
+    f.block().loop();
+    f.get(e).get(stop).op(Op.i32GeS).brIf(1);
+    f.get(e).i32(4 * CORNER_STRIDE).op(Op.i32Mul).set(at);
+    f.get(at).loadI32(L.corners).set(pj);
+    f.get(at).loadI32(L.corners + 4).set(pk);
+    f.get(e).i32(1).op(Op.i32Add).set(e);
+    // another row's triangle: next corner
+    f.get(pj).get(p).op(Op.i32LeS).get(pk).get(p).op(Op.i32LeS).op(Op.i32Or).brIf(0);
+    /** the normal (twice the area vector) of the triangle in the positions at `base` */
+    const normal = (base: number) => {
+      const u = [0, 1, 2].map(() => f.local(F64)), v = [0, 1, 2].map(() => f.local(F64));
+      for (let d = 0; d < 3; d++) {
+        const xi = f.local(F64);
+        f.get(p).loadF64(base + 8 * d).set(xi);
+        f.get(pj).loadF64(base + 8 * d).get(xi).op(Op.f64Sub).set(u[d]);
+        f.get(pk).loadF64(base + 8 * d).get(xi).op(Op.f64Sub).set(v[d]);
+      }
+      return ([[1, 2], [2, 0], [0, 1]] as const).map(([a, b]) => {
+        const c = f.local(F64);
+        f.get(u[a]).get(v[b]).op(Op.f64Mul).get(u[b]).get(v[a]).op(Op.f64Mul).op(Op.f64Sub).set(c);
+        return c;
+      });
+    };
+    const n0 = normal(L.positions), n1 = normal(L.moved);
+    const square = (a: number[], b: number[]) => { f.get(a[0]).get(b[0]).op(Op.f64Mul).get(a[1]).get(b[1]).op(Op.f64Mul).op(Op.f64Add).get(a[2]).get(b[2]).op(Op.f64Mul).op(Op.f64Add); };
+    const after = f.local(F64);
+    square(n1, n1); f.set(after);
+    // good: n0·n1 > 0, |n1|² ≥ r²|n0|², |n1|² < ∞ (a NaN fails every comparison)
+    square(n0, n1); f.f64(0).op(Op.f64Gt);
+    f.get(after).get(2); square(n0, n0); f.op(Op.f64Mul).op(Op.f64Ge).op(Op.i32And);
+    f.get(after).f64(Infinity).op(Op.f64Lt).op(Op.i32And);
+    f.op(Op.i32Eqz).get(flag).op(Op.i32Or).set(flag);
+    f.br(0).end().end();
+  });
+  f.get(flag);
+  m.addFunction(f, 'checkMove');
 }
 
 /** The six sweeps of the fused Jacobi-CG solve (see fusedConjugateGradient.ts for the driver). */
