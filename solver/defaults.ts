@@ -87,5 +87,9 @@ export const SNAPSHOT_FORMAT_CHOICES = ['ply', 'glb', 'obj', 'csv'] as const;
 export const RUN_CHUNK_MS = 200;
 /** The same in the viewer's worker, which posts a frame after each chunk. */
 export const VIEWER_CHUNK_MS = 25;
+/** The viewer paints a running simulation at most once per this many milliseconds (the latest state only). */
+export const VIEWER_PAINT_INTERVAL_MS = 50;
+/** The viewer's steps-per-second figure: steps over this much wall-clock time, everything included. */
+export const VIEWER_RATE_WINDOW_MS = 1000;
 /** Port of `placode view` on 127.0.0.1. */
 export const VIEWER_PORT = 5178;

@@ -103,7 +103,9 @@ function handle(req: IncomingMessage, res: ServerResponse, appDir: string, runDi
     'Content-Length': statSync(file).size,
     'Cache-Control': 'no-cache',
     'X-Content-Type-Options': 'nosniff',
+    // cross-origin isolated: the simulation's threads share memory (SharedArrayBuffer)
     'Cross-Origin-Opener-Policy': 'same-origin',
+    'Cross-Origin-Embedder-Policy': 'require-corp',
     'Cross-Origin-Resource-Policy': 'same-origin',
   });
   if (req.method === 'HEAD') return res.end();

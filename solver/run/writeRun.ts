@@ -17,8 +17,8 @@ import { textChecksum } from './meshChecksum.ts';
 import { LONG_RUN_SECONDS, RUN_CHUNK_MS } from '../defaults.ts';
 import { formatDuration } from './progress.ts';
 import { machineThreads, nodeThreadTeam } from './nodeThreads.ts';
-import { MIN_BLOCKS_PER_MEMBER, type ThreadTeam } from '../integrate/ThreadTeam.ts';
-import { REDUCTION_BLOCK } from '../integrate/wasm/stepperLayout.ts';
+import type { ThreadTeam } from '../integrate/ThreadTeam.ts';
+import { threadNote, usefulThreads } from './runThreads.ts';
 
 export interface RunOptions {
   /** run directory to write (new run) */
@@ -287,16 +287,4 @@ function swapDirectories(fresh: string, old: string): void {
   } catch (e) {
     throw new FileWriteError(old, e, ` (the new run is in ${fresh})`);
   }
-}
-
-/** How many threads step the run, and why fewer than asked for. */
-function threadNote(requested: number, used: number): string {
-  const threads = `${used} thread${used > 1 ? 's' : ''}`;
-  return used < requested ? `${threads} (of ${requested} asked for: a smaller mesh would not gain from more)` : threads;
-}
-
-/** Threads a run can use: a member needs MIN_BLOCKS_PER_MEMBER blocks of rows (on the largest surface a refining run may reach). */
-function usefulThreads(r: ResolvedScenario, requested: number): number {
-  const largest = r.growth?.refine ? r.growth.refine.maxVertices : r.mesh.positions.length / 3;
-  return Math.max(1, Math.min(requested, Math.floor(Math.ceil(largest / REDUCTION_BLOCK) / MIN_BLOCKS_PER_MEMBER)));
 }

@@ -7,6 +7,7 @@ import type { Browser, Page } from 'playwright-core';
 import { PNG } from 'pngjs';
 import validator from 'gltf-validator';
 import { haveChromium, launchChromium } from './browser.ts';
+import { close, open as openPage, setUpText, state, type AppState } from './viewerPage.ts';
 import { startViewServer } from '../../solver/cli/viewServer.ts';
 import { ensureViewerBuilt } from '../../solver/cli/viewerBuild.ts';
 import { runScenarioFile } from '../../solver/run/runScenarioFile.ts';
@@ -64,47 +65,7 @@ afterAll(async () => {
   if (dir) rmSync(dir, { recursive: true, force: true });
 });
 
-interface AppState {
-  ready: boolean; loaded: boolean; running: boolean; step: number; time: number; vertices: number; frames: number; view: string; problems: string[]; messages: string[];
-  shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number } | null;
-  serverRun: { name: string; frames: number } | null;
-  strokes: number;
-}
-const state = (page: Page) => page.evaluate(() => (window as unknown as { __placode: AppState }).__placode) as Promise<AppState>;
-
-const pageErrors = new Map<Page, string[]>();
-
-/** Close a page; it must not have thrown anything along the way. */
-async function close(page: Page) {
-  await page.close();
-  expect(pageErrors.get(page)).toEqual([]);
-}
-
-/** Open the page; without a run directory, wait for the form's own scenario to be set up first. */
-async function open(url: string): Promise<Page> {
-  const page = await browser.newPage({ viewport: { width: 1280, height: 860 }, acceptDownloads: true });
-  const errors: string[] = [];
-  pageErrors.set(page, errors);
-  page.on('pageerror', (e) => errors.push(e.message));
-  await page.goto(url);
-  await page.waitForFunction((withRun) => {
-    const a = (window as unknown as { __placode: AppState }).__placode;
-    return a?.ready && (withRun || a.loaded);
-  }, url === runUrl, { timeout: 60_000 });
-  return page;
-}
-
-/** Set up a scenario from text, as a user pasting it would. */
-async function setUpText(page: Page, text: string) {
-  await page.evaluate(() => { (document.querySelector('#text-section') as HTMLDetailsElement).open = true; });
-  await page.fill('#scenario-text', text);
-  const before = (await state(page)).messages.length;
-  await page.click('#use-text');
-  await page.waitForFunction((n) => {
-    const a = (window as unknown as { __placode: AppState }).__placode;
-    return a.messages.length > n && a.messages[0].startsWith('info: set up');
-  }, before, { timeout: 60_000 });
-}
+const open = (url: string) => openPage(browser, url, url === runUrl);
 
 /** A short brush stroke starting at (x, y). */
 async function stroke(page: Page, x: number, y: number) {
@@ -118,6 +79,9 @@ async function stroke(page: Page, x: number, y: number) {
 function drawn(png: PNG, i: number): boolean {
   return Math.abs(png.data[4 * i] - 0xf4) + Math.abs(png.data[4 * i + 1] - 0xf2) + Math.abs(png.data[4 * i + 2] - 0xee) > 12;
 }
+
+/** Until the page has drawn what it was asked to: two animation frames (the surface renders on the first). */
+const settled = (page: Page) => page.evaluate(() => new Promise<void>((done) => requestAnimationFrame(() => requestAnimationFrame(() => done()))));
 
 /** Pixels of the surface area of a screenshot of the stage: how many differ from the background, and how many colours. */
 async function stagePixels(page: Page): Promise<{ png: PNG; covered: number; colours: number }> {
@@ -160,7 +124,7 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     expect(before.covered).toBeGreaterThan(0.15);
     // edges drawn over the surface change the picture
     await page.check('#wireframe');
-    await page.waitForTimeout(200);
+    await settled(page);
     expect(pixelChange(before.png, (await stagePixels(page)).png)).toBeGreaterThan(0.01); // unchanged state: only the edges differ
     await page.uncheck('#wireframe');
     await page.evaluate(() => (document.activeElement as HTMLElement | null)?.blur()); // keys go to the page, not the checkbox
@@ -222,9 +186,9 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     const cx = box.x + box.width / 2, cy = box.y + box.height / 2;
     const before = await stagePixels(page);
     await stroke(page, cx, cy);
-    await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode.shown!.max > 0.2, null, { timeout: 20_000 });
-    expect((await state(page)).shown!.max).toBeCloseTo(0.25, 2); // the spot value of v
-    await page.waitForTimeout(300);
+    // the spot value of v where the dabs overlap (paints come at most every 50 ms: wait for the one after the last dab)
+    await page.waitForFunction(() => Math.abs((window as unknown as { __placode: AppState }).__placode.shown!.max - 0.25) < 0.005, null, { timeout: 20_000 });
+    await settled(page);
     const seeded = await stagePixels(page);
     const change = pixelChange(before.png, seeded.png);
     await page.locator('#stage').screenshot({ path: join(tmpdir(), 'placode-brush.png') });

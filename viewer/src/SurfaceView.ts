@@ -8,6 +8,7 @@ import * as THREE from 'three';
 import { OrbitControls } from 'three/examples/jsm/controls/OrbitControls.js';
 import { MeshBVH, acceleratedRaycast } from 'three-mesh-bvh';
 import { srgbToLinear } from '../../solver/io/writeGlb.ts';
+import { webglRenderer } from './softwareWebgl.ts';
 
 THREE.Mesh.prototype.raycast = acceleratedRaycast;
 
@@ -40,9 +41,14 @@ export class SurfaceView {
   private framedRadius = 0;
   private drawRequested = false;
 
+  /** the WebGL renderer's name, and whether the surface is drawn with antialiasing (not in software WebGL) */
+  readonly gl: { renderer: string; antialias: boolean };
+
   constructor(private readonly container: HTMLElement) {
-    this.renderer = new THREE.WebGLRenderer({ antialias: true, preserveDrawingBuffer: true });
-    this.renderer.setPixelRatio(Math.min(window.devicePixelRatio, 2));
+    const { name, software } = webglRenderer();
+    this.gl = { renderer: name, antialias: !software };
+    this.renderer = new THREE.WebGLRenderer({ antialias: !software, preserveDrawingBuffer: false });
+    this.renderer.setPixelRatio(software ? 1 : Math.min(window.devicePixelRatio, 2));
     this.renderer.setClearColor(0xf4f2ee);
     container.append(this.renderer.domElement);
     this.renderer.domElement.id = 'surface-canvas';
@@ -148,12 +154,24 @@ export class SurfaceView {
     this.draw();
   }
 
+  /**
+   * Milliseconds a drawn frame keeps the page busy beyond an idle frame
+   * (smoothed): from the frame that renders to the next one. Software WebGL on
+   * a busy machine makes this tens of milliseconds; the live paints slow down
+   * to match (see app.ts).
+   */
+  frameCostMs = 0;
+
   draw(): void {
     if (this.drawRequested) return;
     this.drawRequested = true;
-    requestAnimationFrame(() => {
+    requestAnimationFrame((start) => {
       this.drawRequested = false;
       this.renderer.render(this.scene, this.camera);
+      requestAnimationFrame((next) => {
+        const cost = Math.max(0, next - start - 1000 / 60);
+        this.frameCostMs = this.frameCostMs === 0 ? cost : 0.7 * this.frameCostMs + 0.3 * cost;
+      });
     });
   }
 

@@ -18,6 +18,8 @@ import { encodeSnapshot } from '../../solver/io/encodeSnapshot.ts';
 import { speciesField } from '../../solver/integrate/ReactionDiffusionSystem.ts';
 import type { MeshFileContents } from '../../solver/scenario/scenarioMesh.ts';
 import type { Mesh } from '../../solver/mesh/Mesh.ts';
+import { VIEWER_PAINT_INTERVAL_MS } from '../../solver/defaults.ts';
+import { PaintPacer } from './paintPacer.ts';
 
 const EXAMPLES = import.meta.glob('../../meshes/examples/*.yaml', { query: '?raw', import: 'default', eager: true }) as Record<string, string>;
 
@@ -52,9 +54,15 @@ interface AppState {
   brushMs: number;
   /** brush dabs that hit the surface and were sent to the worker */
   strokes: number;
+  /** threads stepping the simulation */
+  threads: number;
+  /** paints of the live simulation so far (at most one per VIEWER_PAINT_INTERVAL_MS) */
+  paints: number;
+  /** the WebGL renderer, and whether the surface is antialiased (not in software WebGL) */
+  webgl: { renderer: string; antialias: boolean } | null;
 }
 
-const app: AppState = { ready: false, loaded: false, running: false, time: 0, step: 0, vertices: 0, species: [], frames: 0, view: 'live', problems: [], messages: [], stability: null, shown: null, stepsPerSecond: 0, serverRun: null, brushMs: 0, strokes: 0 };
+const app: AppState = { ready: false, loaded: false, running: false, time: 0, step: 0, vertices: 0, species: [], frames: 0, view: 'live', problems: [], messages: [], stability: null, shown: null, stepsPerSecond: 0, serverRun: null, brushMs: 0, strokes: 0, threads: 1, paints: 0, webgl: null };
 (window as unknown as { __placode: AppState }).__placode = app;
 
 const worker = new Worker(new URL('./simulationWorker.ts', import.meta.url), { type: 'module' });
@@ -103,6 +111,7 @@ function onAnalysis(m: FromAnalysis) {
 }
 
 const view = new SurfaceView(byId('stage'));
+app.webgl = view.gl;
 const openedFiles: Record<string, MeshFileContents> = {};
 const form = new ScenarioForm(() => { byId('setup').classList.add('pending'); });
 byId('scenario-panel').append(form.root);
@@ -249,8 +258,10 @@ worker.onmessage = (event: MessageEvent<FromSimulation>) => {
       byId('dispersion').replaceChildren();
       const s = m.stats;
       byId('tissue-stats').textContent = `${s.vertices} vertices · ${s.triangles} triangles · area ${fmt(s.area)} · genus ${Number.isNaN(s.genus) ? "none (not an orientable manifold)" : s.genus} · ${s.boundaryLoops} boundary loop(s) · ${s.components} component(s) · mean edge ${fmt(s.meanEdge)}`;
-      byId('clock-stats').textContent = `${m.scheme}${m.scheme === 'imex' ? ` (${m.solver})` : ''}, dt = ${fmt(m.dt)}, to t = ${fmt(m.end)}, a frame every ${fmt(m.every)}${m.growing ? ', growing' : ''}`;
+      byId('clock-stats').textContent = `${m.scheme}${m.scheme === 'imex' ? ` (${m.solver})` : ''}, dt = ${fmt(m.dt)}, to t = ${fmt(m.end)}, a frame every ${fmt(m.every)}${m.growing ? ', growing' : ''}, ${m.threads.used} thread${m.threads.used > 1 ? 's' : ''}`;
+      app.threads = m.threads.used;
       for (const w of [...m.notes, ...m.warnings]) say(w, 'warning');
+      if (m.threads.note) say(m.threads.note);
       say(`set up: ${m.species.join(', ')} on ${s.vertices} vertices`);
       updateTimeline();
       paint();
@@ -276,15 +287,14 @@ worker.onmessage = (event: MessageEvent<FromSimulation>) => {
       if (m.keep && timelineSource === 'live') {
         if (timeline[timeline.length - 1]?.time !== m.time) timeline.push(live);
         thinTimeline();
-        updateTimeline();
+        timelineChanged = true;
       }
-      if (app.view === 'live') paint();
-      status();
-      requestAnimationFrame(() => send({ type: 'ack' }));
+      livePaint.request();
       break;
     }
     case 'stopped':
       app.running = false;
+      livePaint.now();
       say(m.message, m.reason === 'end' || m.reason === 'steady-state' ? 'info' : 'error');
       status();
       break;
@@ -296,6 +306,21 @@ worker.onmessage = (event: MessageEvent<FromSimulation>) => {
   }
 };
 worker.onerror = (e) => say(`the simulation worker failed: ${e.message}`, 'error');
+
+/**
+ * The live simulation is painted at most every VIEWER_PAINT_INTERVAL_MS, the
+ * latest frame only, and no more often than keeps drawing under a fifth of the
+ * page's time (software WebGL on a busy machine); then the worker may send the next.
+ */
+let timelineChanged = false;
+const livePaint = new PaintPacer(() => Math.min(1000, Math.max(VIEWER_PAINT_INTERVAL_MS, 5 * view.frameCostMs)), () => {
+  if (timelineChanged) updateTimeline();
+  timelineChanged = false;
+  if (app.view === 'live') paint();
+  status();
+  app.paints++;
+  send({ type: 'ack' });
+});
 
 /** Largest distance of a vertex from the centroid. */
 function extent(p: Float64Array): number {

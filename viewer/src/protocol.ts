@@ -55,6 +55,8 @@ export type FromSimulation =
       scheme: string;
       solver: string;
       growing: boolean;
+      /** threads stepping the run, and why not more where it matters */
+      threads: { used: number; note?: string };
       warnings: string[];
       notes: string[];
       stats: SurfaceStats;

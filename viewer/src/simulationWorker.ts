@@ -2,10 +2,13 @@
 /**
  * The simulation worker: resolves a scenario exactly as the command line does
  * (resolveInViewer) and runs it with the command line's own run loop
- * (RunEngine) in chunks of about VIEWER_CHUNK_MS, posting a frame (state, and
- * the surface when it grows) after each chunk the page has drawn and at every
- * output time. Buffers are transferred. The stability analysis is
- * analysisWorker's.
+ * (RunEngine, on a team of threads where the page is cross-origin isolated)
+ * in chunks of about VIEWER_CHUNK_MS. It posts a frame (state, and the surface
+ * when it grows) at every output time, and otherwise at most every
+ * VIEWER_PAINT_INTERVAL_MS once the page has drawn the last one, so the page
+ * paints the latest state only. Buffers are transferred. The steps per second
+ * it reports count wall-clock time, everything included. The stability
+ * analysis is analysisWorker's.
  */
 import type { ResolvedScenario } from '../../solver/scenario/resolveScenario.ts';
 import { ScenarioError } from '../../solver/scenario/ScenarioError.ts';
@@ -15,8 +18,10 @@ import { RunEngine } from '../../solver/run/RunEngine.ts';
 import { constantValues, steadyStatesOf } from '../../solver/analysis/stabilityReport.ts';
 import { meshStatistics } from '../../solver/mesh/meshStatistics.ts';
 import { meshArea } from '../../solver/mesh/triangleAreas.ts';
-import { VIEWER_CHUNK_MS } from '../../solver/defaults.ts';
+import { VIEWER_CHUNK_MS, VIEWER_PAINT_INTERVAL_MS, VIEWER_RATE_WINDOW_MS } from '../../solver/defaults.ts';
+import type { ThreadTeam } from '../../solver/integrate/ThreadTeam.ts';
 import type { FromSimulation, ToSimulation } from './protocol.ts';
+import { WorkerThreads } from './browserThreads.ts';
 
 declare const self: DedicatedWorkerGlobalScope;
 
@@ -31,16 +36,29 @@ let lastPositions: Float64Array | undefined;
 /** √(area / start area) of the surface last sent: recomputed only when the surface moves */
 let growthFactor = 1;
 let rate = 0;
+/** the rate's window: steps and wall-clock time at its start */
+let window0 = { step: 0, time: 0 };
+/** when the last frame to paint was sent */
+let lastSent = -Infinity;
+let flushTimer: ReturnType<typeof setTimeout> | undefined;
 let stopped = false;
+const threads = new WorkerThreads();
+let team: ThreadTeam | undefined;
 
 const post = (m: FromSimulation, transfer: Transferable[] = []) => self.postMessage(m, transfer);
 
 function send(keep: boolean) {
   if (!engine || !resolved) return;
-  if (waitingForAck && !keep) {
-    pendingFrame = true;
-    return;
+  if (!keep) {
+    const wait = lastSent + VIEWER_PAINT_INTERVAL_MS - performance.now();
+    if (waitingForAck || wait > 0) {
+      pendingFrame = true;
+      // a running simulation sends again after its next chunk; a paused one needs reminding
+      if (!waitingForAck && !running && flushTimer === undefined) flushTimer = setTimeout(() => { flushTimer = undefined; if (pendingFrame) send(false); }, wait);
+      return;
+    }
   }
+  lastSent = performance.now();
   const surface = engine.surface;
   const state = engine.state.slice();
   let positions: Float64Array | undefined;
@@ -88,10 +106,16 @@ function chunk(limit = Infinity): boolean {
     } else break;
     if (performance.now() - t0 > VIEWER_CHUNK_MS) break;
   }
-  const seconds = (performance.now() - t0) / 1000;
-  const taken = e.step - from;
-  if (taken > 0 && seconds > 0) rate = 0.7 * rate + 0.3 * (taken / seconds);
+  measureRate();
   return !ended;
+}
+
+/** Steps per second over the last window of VIEWER_RATE_WINDOW_MS (the first one as it fills), wall clock. */
+function measureRate() {
+  const now = performance.now(), span = now - window0.time;
+  if (!engine || span <= 0) return;
+  if (span >= VIEWER_RATE_WINDOW_MS || (rate === 0 && span >= VIEWER_RATE_WINDOW_MS / 4)) rate = ((engine.step - window0.step) * 1000) / span;
+  if (span >= VIEWER_RATE_WINDOW_MS) window0 = { step: engine.step, time: now };
 }
 
 function loop() {
@@ -110,7 +134,7 @@ function loop() {
 const nextChunk = new MessageChannel();
 nextChunk.port1.onmessage = () => loop();
 
-function load(text: string, files: Record<string, MeshFileContents>) {
+async function load(text: string, files: Record<string, MeshFileContents>) {
   running = false;
   let next: ResolvedScenario;
   try {
@@ -121,6 +145,8 @@ function load(text: string, files: Record<string, MeshFileContents>) {
     return; // the current simulation is left as it was
   }
   resolved = next;
+  const chosen = await threads.teamFor(next);
+  team = chosen.team;
   setUp();
   const stats = meshStatistics(next.mesh);
   const rest = restState(next);
@@ -129,7 +155,7 @@ function load(text: string, files: Record<string, MeshFileContents>) {
   const triangles = next.mesh.triangles.slice();
   post({
     type: 'loaded', positions, triangles, species: next.species, state, dt: next.dt, end: next.end, every: next.output.everySteps * next.dt,
-    scheme: next.scheme, solver: next.solver, growing: next.growth !== undefined, warnings: next.warnings, notes: next.meshNotes,
+    scheme: next.scheme, solver: next.solver, growing: next.growth !== undefined, threads: { used: engine!.threads, note: chosen.note }, warnings: next.warnings, notes: next.meshNotes,
     stats: { vertices: stats.vertices, triangles: stats.triangles, area: stats.area, genus: stats.genus, boundaryLoops: stats.boundaryLoops, components: stats.components, meanEdge: stats.edgeLength.mean },
     rest, colour: next.output.colour, colormap: next.output.colormap, range: next.output.range,
   }, [state.buffer, positions.buffer, triangles.buffer]);
@@ -147,7 +173,7 @@ function restState(r: ResolvedScenario): (number | null)[] {
 }
 
 function setUp() {
-  engine = new RunEngine(resolved!);
+  engine = new RunEngine(resolved!, undefined, team);
   rate = 0;
   stopped = false;
   waitingForAck = false;
@@ -157,12 +183,17 @@ function setUp() {
   growthFactor = 1;
 }
 
+/** Messages are handled one after another (setting a scenario up waits for its threads to start). */
+let queue: Promise<void> = Promise.resolve();
 self.onmessage = (event: MessageEvent<ToSimulation>) => {
-  const m = event.data;
+  queue = queue.then(() => handle(event.data));
+};
+
+async function handle(m: ToSimulation): Promise<void> {
   try {
     switch (m.type) {
       case 'load':
-        load(m.text, m.files);
+        await load(m.text, m.files);
         break;
       case 'run':
         if (!engine || running) break;
@@ -171,6 +202,8 @@ self.onmessage = (event: MessageEvent<ToSimulation>) => {
           break;
         }
         running = true;
+        window0 = { step: engine.step, time: performance.now() };
+        rate = 0;
         loop();
         break;
       case 'pause':
@@ -213,4 +246,4 @@ self.onmessage = (event: MessageEvent<ToSimulation>) => {
     running = false;
     post({ type: 'error', message: (e as Error).message });
   }
-};
+}

@@ -1,0 +1,119 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Server } from 'node:http';
+import type { Browser } from 'playwright-core';
+import { haveChromium, launchChromium } from './browser.ts';
+import { close, open, setUpText, state } from './viewerPage.ts';
+import { startViewServer } from '../../solver/cli/viewServer.ts';
+import { ensureViewerBuilt } from '../../solver/cli/viewerBuild.ts';
+import { VIEWER_PAINT_INTERVAL_MS } from '../../solver/defaults.ts';
+
+let browser: Browser;
+let server: Server | undefined;
+let url = '';
+
+/** Gray–Scott, implicit–explicit with CG, on about 6000 vertices, seeded with spots so every step has CG work. */
+const RUNNING = `
+seed: 3
+mesh: {shape: sphere, params: {radius: 0.5}, vertices: 6000}
+kinetics: {model: gray-scott, parameters: {F: 0.03, k: 0.062}}
+initial: {spots: {count: 8, radius: 0.08, values: {u: 0.5, v: 0.25}}}
+time: {scheme: imex, step: 1, end: 10000000, solver: cg}
+output: {every: 500, colour: v}
+analysis: {modes: 0}
+`;
+
+beforeAll(async () => {
+  if (!haveChromium) return;
+  const appDir = await ensureViewerBuilt();
+  const s = await startViewServer({ appDir, port: 0 });
+  server = s.server;
+  url = s.url;
+  browser = await launchChromium();
+}, 120_000);
+
+afterAll(async () => {
+  await browser?.close();
+  server?.close();
+});
+
+/** Installed before the page's scripts: the main thread's long tasks (> 50 ms), summed, and the latency of clicks on the tabs. */
+function observe() {
+  const w = window as unknown as { __longTaskMs: number; __clicks: number[] };
+  w.__longTaskMs = 0;
+  w.__clicks = [];
+  new PerformanceObserver((list) => { for (const e of list.getEntries()) w.__longTaskMs += e.duration; }).observe({ type: 'longtask', buffered: true });
+  // a click is answered when the frame after its handler starts: from the input's own time stamp (input delay included)
+  document.addEventListener('click', (e) => {
+    if (!(e.target as Element).closest?.('.tabs button')) return;
+    const start = e.timeStamp;
+    requestAnimationFrame(() => w.__clicks.push(performance.now() - start));
+  }, true);
+}
+
+describe.skipIf(!haveChromium)('the viewer stays responsive while a simulation runs (Chromium, software WebGL)', () => {
+  it('6k vertices, IMEX-CG: long tasks take < 30 % of the page\'s time, tab clicks are answered in < 100 ms (median), the steps per second shown match the steps counted', async () => {
+    const page = await open(browser, url, false, observe);
+    const webgl = (await state(page)).webgl!;
+    expect(webgl.renderer).toMatch(/swiftshader/i);
+    expect(webgl.antialias).toBe(false); // software WebGL: drawn without antialiasing
+    expect(await page.evaluate(() => crossOriginIsolated)).toBe(true); // COOP + COEP: threads can share memory here
+    await setUpText(page, RUNNING);
+    expect((await state(page)).vertices).toBeGreaterThan(5500);
+    await page.click('#run');
+    // running and painted a few times: the measured window starts here
+    await page.waitForFunction(() => { const a = (window as unknown as { __placode: { running: boolean; paints: number; stepsPerSecond: number } }).__placode; return a.running && a.paints > 5 && a.stepsPerSecond > 0; }, null, { timeout: 60_000 });
+    const sample = () => page.evaluate(() => {
+      const w = window as unknown as { __placode: { step: number; stepsPerSecond: number; paints: number }; __longTaskMs: number };
+      return { now: performance.now(), step: w.__placode.step, rate: w.__placode.stepsPerSecond, paints: w.__placode.paints, longTaskMs: w.__longTaskMs, shown: document.querySelector('#status-rate')!.textContent ?? '' };
+    });
+    const first = await sample();
+    const rates: number[] = [];
+    const tabs = ['timeline-panel', 'export-panel', 'messages-panel', 'stability-panel'];
+    for (let k = 0; k < 12; k++) {
+      await page.click(`.tabs button[data-tab="${tabs[k % tabs.length]}"]`);
+      await page.waitForFunction((n) => (window as unknown as { __clicks: number[] }).__clicks.length > n, k); // answered (the frame after it began)
+      expect(await page.isVisible(`#${tabs[k % tabs.length]}`)).toBe(true);
+      rates.push((await sample()).rate);
+      await page.waitForTimeout(250); // a user's pace between clicks
+    }
+    const last = await sample();
+    const wall = last.now - first.now;
+    const clicks = (await page.evaluate(() => (window as unknown as { __clicks: number[] }).__clicks)).slice().sort((a, b) => a - b);
+    const median = clicks[Math.floor(clicks.length / 2)];
+    const longShare = (last.longTaskMs - first.longTaskMs) / wall;
+    // the steps the page saw arrive over the window, against the figure shown (its mean over the window)
+    const counted = ((last.step - first.step) * 1000) / wall;
+    const shownMean = rates.reduce((a, b) => a + b, 0) / rates.length;
+    const paintsPerSecond = ((last.paints - first.paints) * 1000) / wall;
+    console.log(`viewer while running: ${(100 * longShare).toFixed(1)} % of ${(wall / 1000).toFixed(1)} s in long tasks, tab clicks answered in ${clicks.map((c) => c.toFixed(0)).join(', ')} ms (median ${median.toFixed(0)}), ${counted.toFixed(0)} steps/s counted, ${shownMean.toFixed(0)} shown, ${paintsPerSecond.toFixed(1)} paints/s, ${(await state(page)).threads} simulation thread(s)`);
+    expect(longShare).toBeLessThan(0.3);
+    expect(median).toBeLessThan(100);
+    expect(Math.abs(shownMean - counted) / counted).toBeLessThan(0.1);
+    expect(last.shown).toMatch(/^[0-9.]+(e[+-]?\d+)? steps\/s$/);
+    // painted no more often than every VIEWER_PAINT_INTERVAL_MS (a little slack for timer rounding)
+    expect(paintsPerSecond).toBeLessThan(1.1 * (1000 / VIEWER_PAINT_INTERVAL_MS));
+    expect(paintsPerSecond).toBeGreaterThan(2);
+    await page.click('#run');
+    await close(page);
+  }, 180_000);
+
+  it('the page steps on two threads where the scenario asks for them, with the same numbers as on one', async () => {
+    const page = await open(browser, url);
+    const shown: unknown[] = [];
+    for (const threads of [2, 1]) {
+      // 40 000 vertices: enough rows for two threads
+      await setUpText(page, RUNNING.replace('vertices: 6000', 'vertices: 40000').replace('solver: cg}', `solver: cg, threads: ${threads}}`));
+      expect((await state(page)).threads).toBe(threads);
+      expect(await page.textContent('#clock-stats')).toMatch(new RegExp(`, ${threads} threads?$`));
+      await page.fill('#step-count', '1');
+      for (let k = 1; k <= 12; k++) {
+        await page.click('#step');
+        await page.waitForFunction((n) => (window as unknown as { __placode: { step: number } }).__placode.step >= n, k);
+      }
+      await page.waitForFunction(() => (window as unknown as { __placode: { paints: number } }).__placode.paints > 0);
+      shown.push((await state(page)).shown);
+    }
+    expect(shown[0]).toEqual(shown[1]); // min, mean and max of v after 12 steps, to the bit
+    await close(page);
+  }, 180_000);
+});
