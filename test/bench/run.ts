@@ -1,9 +1,12 @@
 /**
  * `npm run bench`: timings of the surface-FEM foundation on geodesic spheres of
- * ~10k / 40k / 160k vertices, and the largest shapes the generators build.
- * Set BENCH_SIZES="32 64" (icosphere frequencies) to run a subset; BENCH_EIGEN=0
- * skips the eigen-solves, BENCH_RD=0 the reaction–diffusion stepping, BENCH_FEM=0
- * the assembly table, BENCH_SWEEP=0 the local sweep pool. Machines are noisy: compare ratios within one run.
+ * ~10k / 40k / 160k vertices, the reaction–diffusion stepping (threads, the C
+ * reference beside it) up to 655k, and the largest shapes the generators build.
+ * Set BENCH_SIZES="32 64" (icosphere frequencies) to run a subset of the FEM
+ * table, BENCH_RD_SIZES="32 64 128 256" of the stepping; BENCH_EIGEN=0 skips the
+ * eigen-solves, BENCH_RD=0 the reaction–diffusion stepping, BENCH_FEM=0 the
+ * assembly table, BENCH_SHAPES=0 the shapes, BENCH_SWEEP=0 the local sweep pool.
+ * Machines are noisy: compare ratios within one run.
  */
 import { icosphere } from '../../meshes/shapes/icosphere.ts';
 import { SHAPES, buildShape } from '../../meshes/shapes/index.ts';
@@ -56,7 +59,7 @@ for (const nu of sizes) {
 }
 }
 
-if (process.env.BENCH_RD !== '0') reactionDiffusionBench(sizes);
+if (process.env.BENCH_RD !== '0') await reactionDiffusionBench((process.env.BENCH_RD_SIZES ?? '32 64 128 256').split(/\s+/).filter(Boolean).map(Number));
 
 if (process.env.BENCH_SHAPES !== '0') {
   console.log('\nShapes at a 200k-vertex target');
