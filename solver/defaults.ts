@@ -30,6 +30,9 @@ export const FORMULA_MAX_NESTING = 64;
 export const MAX_RUN_STEPS = 1e12;
 /** A run whose estimated wall-clock time exceeds this stops after its first chunk unless confirmed (`--yes`). */
 export const LONG_RUN_SECONDS = 24 * 3600;
+/** A mesh of at least this many vertices whose vertex order is scattered (more than this fraction of far edges) gets a note suggesting `reorder`. */
+export const SCATTERED_ORDER_VERTICES = 20_000;
+export const SCATTERED_ORDER_FRACTION = 0.25;
 /** The most threads one run may ask for (time.threads, --threads). */
 export const MAX_THREADS = 256;
 /** Threads of each run of a sweep unless its scenario sets time.threads: the sweep's pool of workers already fills the cores. */

@@ -48,6 +48,7 @@ export { evaluateSurfaceFormula } from './kinetics/surfaceField.ts';
 export { ReactionDiffusionStepper, type StepperOptions } from './integrate/ReactionDiffusionStepper.ts';
 export { type ReactionDiffusionSystem, speciesField } from './integrate/ReactionDiffusionSystem.ts';
 export { explicitStepLimit, systemExplicitLimit, type ExplicitStepLimit } from './integrate/explicitStepLimit.ts';
+export { ThreadTeam, ThreadError, type HelperThread, type SpawnHelper } from './integrate/ThreadTeam.ts';
 export type { GrowthLaw } from './growth/GrowthLaw.ts';
 export { affineGrowth } from './growth/affineGrowth.ts';
 export { normalGrowth } from './growth/normalGrowth.ts';
@@ -62,6 +63,7 @@ export { resolveScenarioText, type ScenarioTextOptions } from './scenario/resolv
 export type { ResolvedScenario, ScenarioEnvironment, LoadedMesh } from './scenario/ResolvedScenario.ts';
 export { ScenarioError, type ScenarioProblem } from './scenario/ScenarioError.ts';
 export { RunEngine, type EngineEvent } from './run/RunEngine.ts';
+export { usefulThreads } from './run/runThreads.ts';
 export { PatternTracker } from './run/PatternTracker.ts';
 export type { RunRecord, RunAnalysis, StopReason } from './run/RunRecord.ts';
 export { encodeState, decodeState, encodeFrame, type SavedState } from './run/runFiles.ts';

@@ -12,6 +12,7 @@ export { readRunRecord, peekRunRecord, loadRunState } from './run/runDirectory.t
 export { runFrames, loadSnapshot, snapshotField } from './run/runFrames.ts';
 export { RUN_FILES } from './run/runFiles.ts';
 export { meshChecksum } from './run/meshChecksum.ts';
+export { nodeThreadTeam, machineThreads } from './run/nodeThreads.ts';
 export { exportRun, type ExportOptions } from './cli/exportRun.ts';
 export { runFigure, type FigureOptions } from './cli/figure.ts';
 export { planSweep, readManifest, type SweepPlan } from './sweep/sweepPlan.ts';

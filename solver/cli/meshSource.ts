@@ -14,6 +14,7 @@ export interface MeshSourceOptions {
   dropUnreferenced?: boolean;
   refine?: string;
   loop?: string;
+  reorder?: boolean;
 }
 
 export interface ResolvedMesh {
@@ -62,6 +63,7 @@ export async function resolveMesh(spec: string, o: MeshSourceOptions): Promise<R
     fixOrientation: o.fixOrientation,
     refine: parseCount(o.refine, '--refine') ?? 0,
     loop: parseCount(o.loop, '--loop') ?? 0,
+    reorder: o.reorder,
   });
   mesh = repaired.mesh;
   vertexData = repaired.vertexData;

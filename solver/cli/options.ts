@@ -35,7 +35,8 @@ export function addMeshOptions(cmd: Command): Command {
     .option('--fix-orientation', 'make triangle orientation consistent (outward on closed surfaces)')
     .option('--drop-unreferenced', 'remove vertices no triangle uses')
     .option('--refine <n>', '1-to-4 midpoint refinements to apply')
-    .option('--loop <n>', 'Loop subdivision steps to apply (smooths the surface)');
+    .option('--loop <n>', 'Loop subdivision steps to apply (smooths the surface)')
+    .option('--reorder', 'renumber the vertices so neighbours are close in memory (reverse Cuthill–McKee; faster stepping on a scattered mesh)');
 }
 
 export type ProgressChoice = 'auto' | 'bar' | 'lines' | 'none';

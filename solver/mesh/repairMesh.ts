@@ -8,6 +8,9 @@ import { prolongField } from './Refinement.ts';
 import { validateMesh } from './validateMesh.ts';
 import { meshTopology } from './meshTopology.ts';
 import { MAX_SHAPE_VERTICES } from '../defaults.ts';
+import { LOCALITY_WINDOW, localityOrder, renumberVertices, scatteredEdgeFraction } from './localityOrder.ts';
+
+const percent = (x: number) => `${(100 * x).toFixed(x < 0.1 ? 1 : 0)} %`;
 
 export interface MeshRepairs {
   /** weld vertices closer than this (0: identical only); undefined: no welding */
@@ -16,6 +19,8 @@ export interface MeshRepairs {
   fixOrientation?: boolean;
   refine?: number;
   loop?: number;
+  /** renumber the vertices in a locality order (last, after any refinement) */
+  reorder?: boolean;
 }
 
 /** A repair or refinement that cannot be made, with the option that asked for it. */
@@ -28,8 +33,8 @@ export class MeshRepairError extends Error {
 
 /**
  * Apply repairs and refinements in a fixed order (weld, drop unreferenced,
- * orient, midpoint refinement, Loop subdivision), carrying per-vertex data
- * along. Errors say what to repair first.
+ * orient, midpoint refinement, Loop subdivision, renumbering), carrying
+ * per-vertex data along. Errors say what to repair first.
  */
 export function repairMesh(input: Mesh, data: Record<string, Float64Array>, o: MeshRepairs): { mesh: Mesh; vertexData: Record<string, Float64Array>; notes: string[] } {
   let mesh = input;
@@ -90,6 +95,13 @@ export function repairMesh(input: Mesh, data: Record<string, Float64Array>, o: M
   }
   if (refine) notes.push(`midpoint-refined ${refine} times`);
   if (loop) notes.push(`Loop-subdivided ${loop} times`);
+  if (o.reorder) {
+    const before = scatteredEdgeFraction(mesh);
+    const r = renumberVertices(mesh, localityOrder(mesh));
+    mesh = r.mesh;
+    remap(r.vertexMap, mesh.positions.length / 3);
+    notes.push(`renumbered the vertices in a locality order (reverse Cuthill–McKee): ${percent(scatteredEdgeFraction(mesh))} of edges join vertices more than ${LOCALITY_WINDOW} apart (${percent(before)} before); vertex numbers in the outputs follow the new order`);
+  }
   return { mesh, vertexData, notes };
 }
 

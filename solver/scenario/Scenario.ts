@@ -83,6 +83,8 @@ export interface MeshSpec {
   dropUnreferenced?: boolean;
   refine?: number;
   loop?: number;
+  /** renumber the vertices so that neighbours are close in memory (faster stepping on a scattered mesh file) */
+  reorder?: boolean;
 }
 
 export interface KineticsSpec {
@@ -178,6 +180,7 @@ export const SCENARIO_SCHEMA = {
         dropUnreferenced: { type: 'boolean' },
         refine: { type: 'integer', minimum: 0, maximum: 6 },
         loop: { type: 'integer', minimum: 0, maximum: 6 },
+        reorder: { type: 'boolean' },
       },
     },
     kinetics: {

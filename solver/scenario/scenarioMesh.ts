@@ -4,6 +4,8 @@ import type { MeshSpec } from './Scenario.ts';
 import type { LoadedMesh } from './resolveScenario.ts';
 import { repairMesh } from '../mesh/repairMesh.ts';
 import { validateMesh } from '../mesh/validateMesh.ts';
+import { LOCALITY_WINDOW, scatteredEdgeFraction } from '../mesh/localityOrder.ts';
+import { SCATTERED_ORDER_FRACTION, SCATTERED_ORDER_VERTICES } from '../defaults.ts';
 
 /** A mesh file's contents, however the environment reads it (a path in Node, an opened file in the browser). */
 export interface MeshFileContents {
@@ -39,12 +41,16 @@ export function scenarioMesh(spec: MeshSpec, readFile: (file: string) => MeshFil
     source = read.source;
   }
   const weld = spec.weld === undefined || spec.weld === false ? undefined : spec.weld === true ? 0 : spec.weld;
-  const repaired = repairMesh(mesh, vertexData, { weld, dropUnreferenced: spec.dropUnreferenced, fixOrientation: spec.fixOrientation, refine: spec.refine, loop: spec.loop });
+  const repaired = repairMesh(mesh, vertexData, { weld, dropUnreferenced: spec.dropUnreferenced, fixOrientation: spec.fixOrientation, refine: spec.refine, loop: spec.loop, reorder: spec.reorder });
   const report = validateMesh(repaired.mesh);
   if (report.errors.length) {
     throw new Error(`the mesh cannot be used for surface finite elements: ${report.errors.map((e) => e.message).join('; ')}`);
   }
   notes.push(...repaired.notes, ...report.warnings.map((w) => w.message));
-  for (const k of ['weld', 'fixOrientation', 'dropUnreferenced', 'refine', 'loop'] as const) if (spec[k] !== undefined) source[k] = spec[k];
+  const scattered = repaired.mesh.positions.length / 3 >= SCATTERED_ORDER_VERTICES && !spec.reorder ? scatteredEdgeFraction(repaired.mesh) : 0;
+  if (scattered > SCATTERED_ORDER_FRACTION) {
+    notes.push(`the vertex order is scattered (${Math.round(100 * scattered)} % of edges join vertices more than ${LOCALITY_WINDOW} apart), which makes stepping up to 3× slower and threads gain little: add reorder: true to the mesh section (vertex numbers in the outputs then follow the new order), or renumber the file once with placode mesh ${spec.file ?? 'FILE'} --reorder -o NEW.ply`);
+  }
+  for (const k of ['weld', 'fixOrientation', 'dropUnreferenced', 'refine', 'loop', 'reorder'] as const) if (spec[k] !== undefined) source[k] = spec[k];
   return { mesh: repaired.mesh, vertexData: repaired.vertexData, source, notes };
 }

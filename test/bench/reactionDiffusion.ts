@@ -26,6 +26,7 @@ import { nodeThreadTeam } from '../../solver/run/nodeThreads.ts';
 import type { ThreadTeam } from '../../solver/integrate/ThreadTeam.ts';
 import type { Mesh } from '../../solver/mesh/Mesh.ts';
 import { PACKAGE_ROOT } from '../../solver/packageRoot.ts';
+import { localityOrder, renumberVertices, scatteredEdgeFraction } from '../../solver/mesh/localityOrder.ts';
 
 const gs = MODELS['gray-scott'];
 const kinetics = compileKinetics(gs.species, gs.reactions, Object.keys(gs.parameters));
@@ -96,6 +97,28 @@ function runCReference(binary: string, level: number): CReference | undefined {
     console.log(`(the C reference failed at level ${level}: ${(e as Error).message.split('\n')[0]})`);
     return undefined;
   }
+}
+
+/** The explicit step on icosphere(nu) as built, shuffled, and shuffled then renumbered by localityOrder. */
+function vertexOrderRows(nu: number, teams: Map<number, ThreadTeam | undefined>): string[] {
+  const built = icosphere(nu, 1), n = built.positions.length / 3;
+  const rand = seededRandom(3);
+  const order = Uint32Array.from({ length: n }, (_, i) => i);
+  for (let i = n - 1; i > 0; i--) { const j = Math.floor(rand() * (i + 1)); [order[i], order[j]] = [order[j], order[i]]; }
+  const scattered = renumberVertices(built, order).mesh;
+  const renumbered = renumberVertices(scattered, localityOrder(scattered)).mesh;
+  return ([['as built', built], ['random', scattered], ['renumbered', renumbered]] as const).map(([name, mesh]) => {
+    const K = cotanStiffness(mesh), m = lumpedMass(mesh);
+    const dt = 0.5 * explicitStepLimit(K, m, 2e-5).safeUpTo;
+    const works = [1, 2].map((t) => {
+      const st = new ReactionDiffusionStepper({ mesh, kinetics, parameters: [0.037, 0.06], diffusion: [2e-5, 1e-5] }, { scheme: 'explicit', dt, team: teams.get(t) }, { stiffness: K, mass: m });
+      spots(mesh, st.state);
+      let k = 0;
+      return () => { st.step(k++); };
+    });
+    const [t1, t2] = interleaved(works);
+    return `| ${name} | ${(100 * scatteredEdgeFraction(mesh)).toFixed(1)} % | ${fmt(t1)} | ${fmt(t2)} |`;
+  });
 }
 
 const fmt = (x: number, digits = 3) => (x >= 100 ? x.toFixed(0) : x.toPrecision(digits));
@@ -172,6 +195,7 @@ export async function reactionDiffusionBench(frequencies: number[]): Promise<voi
     solves.push(`| ${n} | ${c ? fmt(c.cgMs) : '—'} | ${fmt(s1)} (${it1})${vsC(s1)} | ${fmt(s1t)}${vsC(s1t)} | ${fmt(s2)} | ${chol === undefined ? '—' : `${fmt(chol)}${vsC(chol)}`} |`);
     console.log(`  … ${n} vertices measured`);
   }
+  const orderRows = frequencies.includes(128) ? vertexOrderRows(128, teams) : [];
   for (const t of teams.values()) t?.dispose();
 
   console.log(`\nGray–Scott stepping on unit geodesic spheres (1, 2${many.length ? `, ${many.join(', ')}` : ''} threads; best of 5 reps; ratios to one C thread)`);
@@ -182,6 +206,12 @@ export async function reactionDiffusionBench(frequencies: number[]): Promise<voi
   console.log('| vertices | 1 thread, ms | 2 threads, ms (ratio) | in IMEX-CG steps | in explicit steps | extra bytes/vertex of a growing IMEX-CG run |');
   console.log('|---:|---:|---:|---:|---:|---:|');
   for (const row of growth) console.log(row);
+  if (orderRows.length) {
+    console.log('\nVertex order: the explicit step (ms) on the same sphere numbered as built, at random, and renumbered (reverse Cuthill–McKee, `reorder: true`)');
+    console.log('| order | edges joining vertices > 4096 apart | 1 thread | 2 threads |');
+    console.log('|---|---:|---:|---:|');
+    for (const row of orderRows) console.log(row);
+  }
   console.log('\nThe reference\'s solve (M + cK)x = Mu₀ (ms; ratio to the C solve)');
   console.log('| vertices | C CG | CG, 1 species (it.) | CG, 2 threads | CG, both species fused | Cholesky solve, 1 species |');
   console.log('|---:|---:|---:|---:|---:|---:|');
