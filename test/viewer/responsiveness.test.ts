@@ -5,7 +5,7 @@ import { haveChromium, launchChromium } from './browser.ts';
 import { close, open, setUpText, state } from './viewerPage.ts';
 import { startViewServer } from '../../solver/cli/viewServer.ts';
 import { ensureViewerBuilt } from '../../solver/cli/viewerBuild.ts';
-import { VIEWER_PAINT_INTERVAL_MS } from '../../solver/defaults.ts';
+import { VIEWER_PAINT_INTERVAL_MS, VIEWER_RATE_WINDOW_MS } from '../../solver/defaults.ts';
 
 let browser: Browser;
 let server: Server | undefined;
@@ -36,11 +36,17 @@ afterAll(async () => {
   server?.close();
 });
 
-/** Installed before the page's scripts: the main thread's long tasks (> 50 ms), summed, and the latency of clicks on the tabs. */
+/** Installed before the page's scripts: the main thread's long tasks (> 50 ms), summed, the latency of clicks on the tabs, and the step the page shows at every animation frame. */
 function observe() {
-  const w = window as unknown as { __longTaskMs: number; __clicks: number[] };
+  const w = window as unknown as { __longTaskMs: number; __clicks: number[]; __steps: [number, number][]; __placode?: { running: boolean; step: number } };
   w.__longTaskMs = 0;
   w.__clicks = [];
+  w.__steps = [];
+  const record = (now: number) => {
+    if (w.__placode?.running) w.__steps.push([now, w.__placode.step]);
+    requestAnimationFrame(record);
+  };
+  requestAnimationFrame(record);
   new PerformanceObserver((list) => { for (const e of list.getEntries()) w.__longTaskMs += e.duration; }).observe({ type: 'longtask', buffered: true });
   // a click is answered when the frame after its handler starts: from the input's own time stamp (input delay included)
   document.addEventListener('click', (e) => {
@@ -62,6 +68,8 @@ describe.skipIf(!haveChromium)('the viewer stays responsive while a simulation r
     await page.click('#run');
     // running and painted a few times: the measured window starts here
     await page.waitForFunction(() => { const a = (window as unknown as { __placode: { running: boolean; paints: number; stepsPerSecond: number } }).__placode; return a.running && a.paints > 5 && a.stepsPerSecond > 0; }, null, { timeout: 60_000 });
+    // the step history covers a rate window (and a little) before the first sample
+    await page.waitForFunction((span) => { const h = (window as unknown as { __steps: [number, number][] }).__steps; return h.length > 1 && h[h.length - 1][0] - h[0][0] > span; }, VIEWER_RATE_WINDOW_MS * 1.5, { timeout: 60_000 });
     const sample = () => page.evaluate(() => {
       const w = window as unknown as { __placode: { step: number; stepsPerSecond: number; paints: number }; __longTaskMs: number };
       return { now: performance.now(), step: w.__placode.step, rate: w.__placode.stepsPerSecond, paints: w.__placode.paints, longTaskMs: w.__longTaskMs, shown: document.querySelector('#status-rate')!.textContent ?? '' };
@@ -69,7 +77,7 @@ describe.skipIf(!haveChromium)('the viewer stays responsive while a simulation r
     const first = await sample();
     const rates: number[] = [];
     const tabs = ['timeline-panel', 'export-panel', 'messages-panel', 'stability-panel'];
-    for (let k = 0; k < 12; k++) {
+    for (let k = 0; k < 20; k++) {
       await page.click(`.tabs button[data-tab="${tabs[k % tabs.length]}"]`);
       await page.waitForFunction((n) => (window as unknown as { __clicks: number[] }).__clicks.length > n, k); // answered (the frame after it began)
       expect(await page.isVisible(`#${tabs[k % tabs.length]}`)).toBe(true);
@@ -81,8 +89,19 @@ describe.skipIf(!haveChromium)('the viewer stays responsive while a simulation r
     const clicks = (await page.evaluate(() => (window as unknown as { __clicks: number[] }).__clicks)).slice().sort((a, b) => a - b);
     const median = clicks[Math.floor(clicks.length / 2)];
     const longShare = (last.longTaskMs - first.longTaskMs) / wall;
-    // the steps the page saw arrive over the window, against the figure shown (its mean over the window)
-    const counted = ((last.step - first.step) * 1000) / wall;
+    // The figure shown at time t is the worker's count over a window of VIEWER_RATE_WINDOW_MS that ended
+    // between t − VIEWER_RATE_WINDOW_MS and t: on average it describes the steps around t − VIEWER_RATE_WINDOW_MS.
+    // So its mean over the samples is set against the steps the page saw arrive over the window shifted back by
+    // that much (the machine's load, and with it the rate, may change while the test runs).
+    const history = await page.evaluate(() => (window as unknown as { __steps: [number, number][] }).__steps);
+    const stepAt = (t: number) => {
+      let k = history.findIndex(([now]) => now >= t);
+      if (k < 0) k = history.length - 1;
+      if (k === 0) k = 1;
+      const [t0, s0] = history[k - 1], [t1, s1] = history[k];
+      return s0 + ((s1 - s0) * (t - t0)) / Math.max(t1 - t0, 1e-9);
+    };
+    const counted = ((stepAt(last.now - VIEWER_RATE_WINDOW_MS) - stepAt(first.now - VIEWER_RATE_WINDOW_MS)) * 1000) / wall;
     const shownMean = rates.reduce((a, b) => a + b, 0) / rates.length;
     const paintsPerSecond = ((last.paints - first.paints) * 1000) / wall;
     console.log(`viewer while running: ${(100 * longShare).toFixed(1)} % of ${(wall / 1000).toFixed(1)} s in long tasks, tab clicks answered in ${clicks.map((c) => c.toFixed(0)).join(', ')} ms (median ${median.toFixed(0)}), ${counted.toFixed(0)} steps/s counted, ${shownMean.toFixed(0)} shown, ${paintsPerSecond.toFixed(1)} paints/s, ${(await state(page)).threads} simulation thread(s)`);
