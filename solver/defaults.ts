@@ -41,6 +41,12 @@ export const SWEEP_RUN_THREADS = 1;
 export const OUTPUTS_PER_RUN = 20;
 /** The explicit scheme's default step, as a fraction of the positivity bound. */
 export const EXPLICIT_STEP_FRACTION = 0.9;
+/**
+ * Default steps stay below this fraction of the reactions' forward-Euler limit at the steady state,
+ * min over eigenvalues λ of its Jacobian with Re λ < 0 of −2 Re λ / |λ|² (common practice: half the limit
+ * keeps the homogeneous oscillations well damped).
+ */
+export const REACTION_STEP_FRACTION = 0.5;
 /** Jacobi-CG: relative residual tolerance and iteration cap per solve. */
 export const CG_TOLERANCE = 1e-8;
 export const CG_MAX_ITERATIONS = 2000;
@@ -67,6 +73,14 @@ export const AUTO_SPECTRUM_MODES = 40;
 export const AUTO_SPECTRUM_VERTICES = 50_000;
 /** How patches are cut out of a field. */
 export const DEFAULT_THRESHOLD_RULE = 'mid-range';
+/**
+ * A field is a pattern only when its contrast (max − min of the measured species) exceeds the floor:
+ * PATTERN_NOISE_FACTOR times the noise amplitude the run started from on that species (uniform noise
+ * of amplitude a spans 2a, so twice its own range), and PATTERN_RELATIVE_FLOOR times the field's
+ * magnitude max(|min|, |max|) (a rule of thumb: round-off and a stable run's decaying noise stay below it).
+ */
+export const PATTERN_NOISE_FACTOR = 4;
+export const PATTERN_RELATIVE_FLOOR = 1e-3;
 /** Most surface eigenpairs `placode stability` computes to cover the unstable band. */
 export const STABILITY_MAX_MODES = 200;
 /** Most eigenpairs a growing run computes at each output to follow its predicted mode. */

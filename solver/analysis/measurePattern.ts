@@ -6,6 +6,18 @@ import { modeSpectrum, type ModeSpectrum } from './modeSpectrum.ts';
 
 export type ThresholdRule = 'otsu' | 'mid-range' | number;
 
+/**
+ * The contrast (max − min) a field needs to count as a pattern: max(absolute, relative × max(|min|, |max|)).
+ * Below it the field is noise or round-off around a uniform state: no patches.
+ */
+export interface ContrastFloor {
+  absolute: number;
+  relative: number;
+}
+
+/** Only a field that is exactly flat (to 1e-9 of its magnitude) is no pattern. */
+export const FLAT_ONLY: ContrastFloor = { absolute: 0, relative: 1e-9 };
+
 export interface PatternMeasure {
   threshold: number;
   patches: PatchSummary[];
@@ -13,27 +25,32 @@ export interface PatternMeasure {
   labels: Int32Array;
   /** dominant cluster of the field's projection on the surface modes (when eigenpairs are given) */
   dominant: ModeSpectrum['dominant'];
+  /** max − min of the field, and the floor it had to exceed to count as a pattern */
+  contrast: number;
+  floor: number;
 }
 
 /**
  * Measure a pattern: cut the field at the threshold the rule gives (Otsu's
  * area-weighted rule, the mid-range (min + max)/2, or a fixed value), count
  * the connected patches above it with their areas and centroids, and find the
- * dominant surface-mode cluster of the field.
+ * dominant surface-mode cluster of the field. A field whose contrast does not
+ * exceed the floor has no patches: noise, or round-off around a uniform state,
+ * is not a pattern.
  */
-export function measurePattern(mesh: Mesh, field: ArrayLike<number>, mass: Float64Array, neighbours: VertexNeighbours, rule: ThresholdRule, eig?: Eigenpairs): PatternMeasure {
+export function measurePattern(mesh: Mesh, field: ArrayLike<number>, mass: Float64Array, neighbours: VertexNeighbours, rule: ThresholdRule, eig?: Eigenpairs, floor: ContrastFloor = FLAT_ONLY): PatternMeasure {
+  let lo = Infinity, hi = -Infinity;
+  for (let i = 0; i < field.length; i++) { lo = Math.min(lo, field[i]); hi = Math.max(hi, field[i]); }
+  const contrast = hi - lo;
+  const needed = Math.max(floor.absolute, floor.relative * Math.max(Math.abs(lo), Math.abs(hi)));
+  const dominant = eig ? modeSpectrum(field, mass, eig).dominant : null;
+  if (!(contrast > needed)) {
+    const threshold = typeof rule === 'number' ? rule : 0.5 * (lo + hi);
+    return { threshold, patches: [], labels: new Int32Array(field.length).fill(-1), dominant, contrast, floor: needed };
+  }
   let threshold: number | undefined;
   if (rule === 'otsu') threshold = otsuThreshold(field, mass);
   else if (typeof rule === 'number') threshold = rule;
   const c = thresholdComponents(mesh, field, threshold, mass, neighbours);
-  // a flat field has no pattern: nothing stands above its own level
-  let lo = Infinity, hi = -Infinity;
-  for (let i = 0; i < field.length; i++) { lo = Math.min(lo, field[i]); hi = Math.max(hi, field[i]); }
-  const flat = !(hi - lo > 1e-9 * Math.max(1, Math.abs(hi)));
-  return {
-    threshold: c.threshold,
-    patches: flat && typeof rule !== 'number' ? [] : c.patches,
-    labels: flat && typeof rule !== 'number' ? new Int32Array(field.length).fill(-1) : c.label,
-    dominant: eig ? modeSpectrum(field, mass, eig).dominant : null,
-  };
+  return { threshold: c.threshold, patches: c.patches, labels: c.label, dominant, contrast, floor: needed };
 }

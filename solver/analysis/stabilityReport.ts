@@ -98,9 +98,10 @@ export function scenarioBand(r: StabilityProblem): [number, number] | null {
  * dispersion relation, and every computed surface mode in the unstable band
  * with the fastest one named as the predicted initial pattern. Eigenpairs
  * (lumped mass, as the time stepping uses) are computed up to the band's upper
- * edge — by Weyl's law about area·k²/(4π) modes — at most `maxModes`.
+ * edge — by Weyl's law about area·k²/(4π) modes — at most `maxModes`. `raise`
+ * names the setting that computes more modes, for the note when they fall short.
  */
-export function stabilityReport(r: StabilityProblem, options: { maxModes?: number; eigenpairs?: Eigenpairs; stateIndex?: number } = {}): StabilityReport & { eigenpairs: Eigenpairs | null } {
+export function stabilityReport(r: StabilityProblem, options: { maxModes?: number; eigenpairs?: Eigenpairs; stateIndex?: number; raise?: string } = {}): StabilityReport & { eigenpairs: Eigenpairs | null } {
   const mass = lumpedMass(r.mesh);
   let area = 0;
   for (const m of mass) area += m;
@@ -145,7 +146,7 @@ export function stabilityReport(r: StabilityProblem, options: { maxModes?: numbe
   report.eigenpairs = eig;
   const largest = eig.values[eig.values.length - 1];
   const coversBand = !turing.band || largest >= turing.band[1];
-  if (!coversBand) notes.push(`the ${eig.values.length} computed surface modes reach λ = ${largest.toPrecision(4)}, below the band's upper edge ${turing.band![1].toPrecision(4)}: modes above are not listed (raise --max-modes)`);
+  if (!coversBand) notes.push(`the ${eig.values.length} computed surface modes reach λ = ${largest.toPrecision(4)}, below the band's upper edge ${turing.band![1].toPrecision(4)}: modes above are not listed (raise ${options.raise ?? '--max-modes'})`);
   report.surface = { vertices: r.mesh.positions.length / 3, area, modesComputed: eig.values.length, largestEigenvalue: largest, coversBand };
   const surface = surfaceModeRates(J, diffusion, eig);
   report.modes = surface.unstable;

@@ -34,12 +34,17 @@ export class PatternTracker {
   private readonly growing: boolean;
   private readonly measured: number;
 
-  /** `resumed`: the engine starts from a saved state, whose pattern the next events are measured against. */
-  constructor(private readonly engine: RunEngine, private readonly analysis: RunAnalysis, resumed: boolean) {
+  private warnedShort = false;
+
+  /**
+   * `resumed`: the engine starts from a saved state, whose pattern the next events are measured against.
+   * `warn` hears, once, when the spectrum cannot reach the unstable band.
+   */
+  constructor(private readonly engine: RunEngine, private readonly analysis: RunAnalysis, resumed: boolean, private readonly warn: (message: string) => void = () => {}) {
     const r = engine.scenario;
     this.growing = r.growth !== undefined;
     this.measured = r.species.indexOf(r.analysis.species);
-    this.band = this.growing && r.analysis.modes > 0 ? scenarioBand(r) : null;
+    this.band = r.analysis.modes > 0 ? scenarioBand(r) : null;
     if (r.analysis.modes > 0 && !this.growing) this.updateEigenpairs(engine.step);
     this.neighbours = adjacency(engine.surface);
     if (!this.growing) forgetMeshTopology(r.mesh); // the stepper holds all it needs; free edges and the CSR pattern
@@ -61,18 +66,19 @@ export class PatternTracker {
     const count = pattern.patches.length;
     if (a.frames.length && a.frames[a.frames.length - 1].patches.length !== count) a.lastCountChange = atStep * r.dt;
     a.frames.push({
-      time: atStep * r.dt, step: atStep, threshold: pattern.threshold,
+      time: atStep * r.dt, step: atStep, threshold: pattern.threshold, contrast: pattern.contrast, floor: pattern.floor,
       patches: pattern.patches.map((p) => ({ area: p.area, centroid: p.centroid })),
       dominantEigenvalue: pattern.dominant?.eigenvalue, dominantFraction: pattern.dominant?.fraction,
     });
-    if (this.previousLabels) for (const e of patchEvents(this.previousLabels, pattern.labels)) a.events.push({ time: atStep * r.dt, ...e });
-    this.previousLabels = pattern.labels;
+    // events between frames that both hold a pattern: the first pattern out of noise is not a string of insertions
+    if (this.previousLabels && count > 0) for (const e of patchEvents(this.previousLabels, pattern.labels)) a.events.push({ time: atStep * r.dt, ...e });
+    this.previousLabels = count > 0 ? pattern.labels : undefined;
     return { patches: count, dominantEigenvalue: pattern.dominant?.eigenvalue };
   }
 
   private measure(state: Float64Array) {
     const r = this.engine.scenario;
-    return measurePattern(this.engine.surface, speciesField(state, r.species.length, this.measured), this.engine.mass, this.neighbours, r.analysis.threshold, this.eig);
+    return measurePattern(this.engine.surface, speciesField(state, r.species.length, this.measured), this.engine.mass, this.neighbours, r.analysis.threshold, this.eig, r.analysis.floor);
   }
 
   /** Eigenpairs of the surface as it is now, enough to reach the unstable band, and the prediction they give. */
@@ -80,10 +86,19 @@ export class PatternTracker {
     const r = this.engine.scenario, sim = this.engine.sim;
     const surface = sim.stepper.surface;
     const area = meshArea(surface);
-    const wanted = Math.max(r.analysis.modes, modesToCoverBand(area, this.band) ?? 0);
-    this.eig = laplaceBeltramiEigenpairs(surface, { count: Math.min(wanted, MAX_TRACKED_MODES, sim.vertexCount - 1), mass: 'lumped' });
-    this.analysis.modesUpTo = this.eig.values[this.eig.values.length - 1];
-    const rep = stabilityReport({ ...r, mesh: surface, system: sim.system }, { eigenpairs: this.eig });
+    // enough modes to reach the band's upper edge (Weyl's law), at most the cap or the modes the user asked for
+    const cover = modesToCoverBand(area, this.band) ?? 0;
+    const cap = Math.max(MAX_TRACKED_MODES, r.analysis.modes);
+    const count = Math.min(Math.max(r.analysis.modes, cover), cap, sim.vertexCount - 1);
+    this.eig = laplaceBeltramiEigenpairs(surface, { count, mass: 'lumped' });
+    const upTo = this.eig.values[this.eig.values.length - 1];
+    this.analysis.modesUpTo = upTo;
+    if (this.band && upTo < this.band[1] && !this.warnedShort) {
+      this.warnedShort = true;
+      const meshShort = cover > sim.vertexCount - 1;
+      this.warn(`the unstable band reaches k² = ${this.band[1].toPrecision(4)}; the ${count} surface modes computed reach λ = ${upTo.toPrecision(4)} (covering the band takes about ${cover}${meshShort ? `, more than a mesh of ${sim.vertexCount} vertices has` : ''}): the dominant eigenvalue and the predicted mode see only modes below; ${meshShort ? "refine the mesh to resolve the band's wavelengths" : `set analysis.modes: ${cover} to cover it (eigenpairs cost time and memory)`}`);
+    }
+    const rep = stabilityReport({ ...r, mesh: surface, system: sim.system }, { eigenpairs: this.eig, raise: 'analysis.modes' });
     const prediction = { state: rep.state, band: rep.turing?.band ?? null, fastest: rep.turing?.fastest ?? null, predicted: rep.predicted, notes: rep.notes };
     if (atStep === 0) this.analysis.prediction = prediction;
     if (this.growing) (this.analysis.predictions ??= []).push({ time: atStep * r.dt, area, vertices: sim.vertexCount, predicted: rep.predicted });

@@ -1,5 +1,6 @@
 import type { ResolvedScenario } from '../scenario/ResolvedScenario.ts';
 import { meshArea } from '../mesh/triangleAreas.ts';
+import { PATTERN_NOISE_FACTOR } from '../defaults.ts';
 
 /**
  * Why a run stopped: its end time, a steady state, a blow-up, a folded
@@ -19,12 +20,14 @@ export interface PredictedMode {
 export interface RunAnalysis {
   species: string;
   thresholdRule: string;
+  /** the contrast a frame needs to count as a pattern, in words */
+  floorRule?: string;
   modes: number;
   /** largest computed eigenvalue: the spectrum (and dominantEigenvalue) sees only modes up to here */
   modesUpTo?: number;
   /** linear stability of the analysed steady state on this surface (when modes were computed) */
   prediction?: { state: number; band: [number, number] | null; fastest: { k2: number; rate: number } | null; predicted: PredictedMode | null; notes: string[] };
-  frames: { time: number; step: number; threshold: number; patches: { area: number; centroid: [number, number, number] }[]; dominantEigenvalue?: number; dominantFraction?: number }[];
+  frames: { time: number; step: number; threshold: number; contrast?: number; floor?: number; patches: { area: number; centroid: [number, number, number] }[]; dominantEigenvalue?: number; dominantFraction?: number }[];
   events: { time: number; kind: string; before: number[]; after: number[] }[];
   /** growing runs: the predicted mode as the surface grows (eigenpairs recomputed at every output time) */
   predictions?: { time: number; area: number; vertices: number; predicted: PredictedMode | null }[];
@@ -68,6 +71,12 @@ export interface RunRecord {
   performance?: { steps: number; steppingSeconds: number; stepsPerSecond: number; vertexStepsPerSecond: number; solverIterationsPerStep?: number; stepperBytesPerVertex: number };
 }
 
+/** How the contrast floor of the pattern measures reads in a record. */
+export function floorRuleText(floor: ResolvedScenario['analysis']['floor']): string {
+  if (floor.relative === 0) return `contrast (max − min) above ${floor.absolute} (analysis.floor)`;
+  return `contrast (max − min) above ${floor.absolute > 0 ? `${floor.absolute} (${PATTERN_NOISE_FACTOR} × the starting noise) and ` : ''}${floor.relative} × max(|min|, |max|)`;
+}
+
 /** How the threshold rule of the pattern measures reads in a record. */
 export function thresholdRuleText(threshold: ResolvedScenario['analysis']['threshold']): string {
   return typeof threshold === 'number' ? `fixed ${threshold}` : threshold === 'otsu' ? "Otsu's rule on the area-weighted histogram (256 bins)" : 'mid-range (min + max)/2';
@@ -99,6 +108,6 @@ export function newRunRecord(r: ResolvedScenario, about: { version: string; node
     status: 'running',
     frames: [],
     sessions: [],
-    analysis: { species: r.analysis.species, thresholdRule: thresholdRuleText(r.analysis.threshold), modes: r.analysis.modes, frames: [], events: [] },
+    analysis: { species: r.analysis.species, thresholdRule: thresholdRuleText(r.analysis.threshold), floorRule: floorRuleText(r.analysis.floor), modes: r.analysis.modes, frames: [], events: [] },
   };
 }

@@ -86,7 +86,12 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
   if (r.growth) record.growth ??= { description: r.growth.description, tolerance: r.growth.tolerance, updates: 0, refinements: [] };
   const updatesBefore = record.growth?.updates ?? 0;
   const area0 = meshArea(r.mesh);
-  const tracker = new PatternTracker(engine, record.analysis, saved !== undefined);
+  let announced = false; // warnings found before the run's first line are printed with the scenario's
+  const tracker = new PatternTracker(engine, record.analysis, saved !== undefined, (w) => {
+    if (record.warnings.includes(w)) return;
+    record.warnings.push(w);
+    if (announced) log(`warning: ${w}`);
+  });
   engine.onRefined = ({ step, from, to }) => {
     tracker.refined(step);
     record.growth!.refinements.push({ time: step * dt, step, from, to });
@@ -184,7 +189,8 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
   };
   process.on('SIGINT', onSignal);
   process.on('SIGTERM', onSignal);
-  for (const w of r.warnings) log(`warning: ${w}`);
+  for (const w of record.warnings) log(`warning: ${w}`);
+  announced = true;
   for (const note of r.meshNotes) log(`mesh: ${note}`);
   log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${engine.vertexCount} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''}, ${threadNote(requested, engine.threads)} → ${final}`);
   const progress = makeProgress(options.progress, log, engine.time, lastStep * dt);

@@ -5,7 +5,7 @@ import type { KineticsModel } from '../kinetics/KineticsModel.ts';
 import type { CompiledKinetics } from '../kinetics/compileKinetics.ts';
 import type { ReactionDiffusionSystem } from '../integrate/ReactionDiffusionSystem.ts';
 import type { ExplicitStepLimit } from '../integrate/explicitStepLimit.ts';
-import type { ThresholdRule } from '../analysis/measurePattern.ts';
+import type { ContrastFloor, ThresholdRule } from '../analysis/measurePattern.ts';
 import type { GrowthLaw } from '../growth/GrowthLaw.ts';
 import type { Refinement } from '../mesh/Refinement.ts';
 import type { ColormapName } from '../io/colormap.ts';
@@ -31,6 +31,8 @@ export interface AnalysisPlan {
   species: string;
   threshold: ThresholdRule;
   modes: number;
+  /** the contrast a field needs to count as a pattern (see `measurePattern`) */
+  floor: ContrastFloor;
 }
 
 export interface GrowthPlan {

@@ -67,6 +67,12 @@ export interface AnalysisSpec {
   threshold?: 'otsu' | 'mid-range' | number;
   /** surface eigenpairs for the power spectrum and the predicted mode (default 40 up to 50k vertices, else 0 = off) */
   modes?: number;
+  /**
+   * smallest contrast (max − min of the measured species) that counts as a pattern; below it a frame has
+   * no patches and no events. Default: 4 × the starting noise amplitude on that species, and 1e-3 × the
+   * field's magnitude
+   */
+  floor?: number;
 }
 
 export type FieldValue = number | string | { vertexData: string };
@@ -134,6 +140,8 @@ export interface TimeSpec {
   tolerance?: number;
   /** threads to step with; default: the machine's cores (one per run in a sweep); results are the same for any number */
   threads?: number;
+  /** run a given step beyond the stability limits the tool computes (refused otherwise): for studying the instability itself */
+  allowUnstable?: boolean;
 }
 
 export interface OutputSpec {
@@ -239,6 +247,7 @@ export const SCENARIO_SCHEMA = {
         solver: { enum: ['auto', 'cg', 'cholesky'] },
         tolerance: { type: 'number', exclusiveMinimum: 0, maximum: 0.1 },
         threads: { type: 'integer', minimum: 1, maximum: MAX_THREADS },
+        allowUnstable: { type: 'boolean' },
       },
     },
     sweep: SWEEP_SECTION_SCHEMA,
@@ -280,6 +289,7 @@ export const SCENARIO_SCHEMA = {
         species: { type: 'string' },
         threshold: { description: '"otsu", "mid-range" or a number', oneOf: [{ enum: ['otsu', 'mid-range'] }, { type: 'number' }] },
         modes: { type: 'integer', minimum: 0, maximum: 1000 },
+        floor: { description: 'smallest contrast (max − min) that counts as a pattern', type: 'number', minimum: 0 },
       },
     },
     output: {

@@ -3,7 +3,7 @@ import type { AnalysisPlan, OutputPlan } from './ResolvedScenario.ts';
 import type { KineticsPlan } from './resolveKinetics.ts';
 import type { TimePlan } from './resolveTime.ts';
 import { COLORMAP_NAMES, type ColormapName } from '../io/colormap.ts';
-import { AUTO_SPECTRUM_MODES, AUTO_SPECTRUM_VERTICES, DEFAULT_COLORMAP, DEFAULT_THRESHOLD_RULE, OUTPUTS_PER_RUN } from '../defaults.ts';
+import { AUTO_SPECTRUM_MODES, AUTO_SPECTRUM_VERTICES, DEFAULT_COLORMAP, DEFAULT_THRESHOLD_RULE, OUTPUTS_PER_RUN, PATTERN_NOISE_FACTOR, PATTERN_RELATIVE_FLOOR } from '../defaults.ts';
 
 /** What is painted and measured: checked before the mesh is built. */
 export interface Painting {
@@ -50,6 +50,14 @@ export function resolveOutputPlan(ctx: ResolveContext, painting: Painting, time:
     species: painting.measured,
     threshold: sc.analysis?.threshold ?? DEFAULT_THRESHOLD_RULE,
     modes: Math.min(sc.analysis?.modes ?? (vertices <= AUTO_SPECTRUM_VERTICES ? AUTO_SPECTRUM_MODES : 0), vertices - 1),
+    floor: sc.analysis?.floor !== undefined ? { absolute: sc.analysis.floor, relative: 0 } : { absolute: PATTERN_NOISE_FACTOR * noiseOn(sc.initial?.noise, painting.measured), relative: PATTERN_RELATIVE_FLOOR },
   };
   return { output, analysis };
+}
+
+/** The amplitude of the starting noise on one species (0 when it has none). */
+function noiseOn(noise: number | { amplitude: number; species?: string[] } | undefined, species: string): number {
+  if (noise === undefined) return 0;
+  if (typeof noise === 'number') return noise;
+  return !noise.species || noise.species.includes(species) ? noise.amplitude : 0;
 }

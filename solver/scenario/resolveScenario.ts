@@ -58,7 +58,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     kinetics: { model, citation: kin.model?.citation, species: kin.species, reactions: kin.reactions, parameters: kin.parameterSpec },
     diffusion: fields.diffusionSpec,
     initial: sc.initial ?? {},
-    time: { scheme: time.scheme, step: time.dt, end: time.end, steps: time.steps, steadyState: sc.time.steadyState, solver: time.scheme === 'imex' ? time.solver : undefined, solverChoice: time.scheme === 'imex' ? time.solverReason : undefined, tolerance: time.scheme === 'imex' ? time.tolerance : undefined, threads: sc.time.threads },
+    time: { scheme: time.scheme, step: time.dt, end: time.end, steps: time.steps, steadyState: sc.time.steadyState, solver: time.scheme === 'imex' ? time.solver : undefined, solverChoice: time.scheme === 'imex' ? time.solverReason : undefined, tolerance: time.scheme === 'imex' ? time.tolerance : undefined, threads: sc.time.threads, reactionLimit: time.reactionLimit, allowUnstable: sc.time.allowUnstable },
     output,
     analysis,
     growth: growth ? { ...sc.growth, centre: growth.centre, description: growth.description, tolerance: growth.tolerance } : undefined,

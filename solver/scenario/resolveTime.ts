@@ -7,7 +7,7 @@ import { systemExplicitLimit, type ExplicitStepLimit } from '../integrate/explic
 import { cotanStiffness } from '../fem/cotanStiffness.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
 import { smallMatrixEigenvalues } from '../analysis/smallMatrixEigenvalues.ts';
-import { AUTO_CHOLESKY_STIFFNESS, AUTO_CHOLESKY_VERTICES, CG_TOLERANCE, EXPLICIT_STEP_FRACTION, MAX_RUN_STEPS, OUTPUTS_PER_RUN } from '../defaults.ts';
+import { AUTO_CHOLESKY_STIFFNESS, AUTO_CHOLESKY_VERTICES, CG_TOLERANCE, EXPLICIT_STEP_FRACTION, MAX_RUN_STEPS, OUTPUTS_PER_RUN, REACTION_STEP_FRACTION } from '../defaults.ts';
 
 export interface TimePlan {
   scheme: 'imex' | 'explicit';
@@ -19,6 +19,8 @@ export interface TimePlan {
   solverReason: string;
   tolerance: number;
   explicitLimit?: ExplicitStepLimit;
+  /** forward-Euler limit of the reactions at the steady state (when known) */
+  reactionLimit?: number;
   /** K and lumped M of the start mesh (the step limits are computed from them; the stepper reuses them) */
   operators: { stiffness: CsrMatrix; mass: Float64Array };
 }
@@ -30,12 +32,14 @@ export function checkScheme(ctx: ResolveContext): void {
 }
 
 /**
- * The time step and linear solver. Explicit: refused above the stability limit
- * 2/(D·λmax) of this mesh, warned about above the positivity bound, by default
- * EXPLICIT_STEP_FRACTION of it. IMEX: the model's suggested step (own kinetics
- * must give one); `solver: auto` factorises when CG would need many iterations.
- * Default steps fit a whole number of times into the output interval. Warns when
- * the explicit reaction update is unstable at the steady state.
+ * The time step and linear solver. Default step: the model's suggestion (own
+ * kinetics must give one for IMEX), never above REACTION_STEP_FRACTION of the
+ * reactions' forward-Euler limit at the steady state nor (explicit) above
+ * EXPLICIT_STEP_FRACTION of the positivity bound; it fits a whole number of
+ * times into the output interval. A given step beyond the explicit diffusion
+ * limit 2/(D·λmax) or the reactions' limit is refused unless
+ * `time.allowUnstable`, then warned about. `solver: auto` factorises when CG
+ * would need many iterations.
  */
 export function resolveTime(ctx: ResolveContext, kin: KineticsPlan, system: ReactionDiffusionSystem, lin: Linearisation, uniformSteady: number[] | undefined): TimePlan {
   const { problems, warnings } = ctx;
@@ -55,18 +59,33 @@ export function resolveTime(ctx: ResolveContext, kin: KineticsPlan, system: Reac
     const base = sc.output?.every ?? end / OUTPUTS_PER_RUN;
     return base / Math.ceil(base / largest - 1e-9);
   };
-  if (scheme === 'explicit') {
-    explicitLimit = systemExplicitLimit(system, stiffness, mass);
-    if (dt === undefined) {
-      dt = wholeSteps(Math.min(EXPLICIT_STEP_FRACTION * explicitLimit.safeUpTo, model?.suggestedStep ?? Infinity, end / 10));
-    } else if (dt > explicitLimit.unstableAbove) {
-      problems.add(['time', 'step'], `${dt} is above the explicit scheme's stability limit ${explicitLimit.unstableAbove.toPrecision(3)} on this mesh (2/(D·λmax)); use step ≤ ${explicitLimit.safeUpTo.toPrecision(3)}, or scheme: imex`);
-    } else if (dt > explicitLimit.safeUpTo) {
+  // the reactions are stepped explicitly in both schemes: forward Euler is stable at the steady
+  // state only if |1 + dt·λ| ≤ 1 for every eigenvalue λ of its Jacobian, i.e. dt ≤ −2 Re λ/|λ|²
+  const reactionLimit = (uniformSteady || !model?.steadyStates) ? reactionStepLimit(lin, kin.species.length) : undefined;
+  const allow = sc.time.allowUnstable === true;
+  /** a given step beyond a limit: refused, or (allowUnstable) run with a warning naming the limit */
+  const beyond = (message: string) => {
+    if (allow) warnings.push(`time.step ${message} (time.allowUnstable: true)`);
+    else problems.add(['time', 'step'], `${message}; or, to study the instability itself, add time.allowUnstable: true`);
+  };
+  if (scheme === 'explicit') explicitLimit = systemExplicitLimit(system, stiffness, mass);
+  if (dt === undefined) {
+    if (scheme === 'imex' && model?.suggestedStep === undefined) {
+      problems.add(['time'], 'missing "step": for your own kinetics give a time step (the implicit–explicit scheme is stable for any step in diffusion, but the reactions set the accuracy)');
+    } else {
+      const reactions = reactionLimit ? REACTION_STEP_FRACTION * reactionLimit.limit : Infinity;
+      const diffusion = explicitLimit ? EXPLICIT_STEP_FRACTION * explicitLimit.safeUpTo : Infinity;
+      dt = wholeSteps(Math.min(diffusion, reactions, model?.suggestedStep ?? Infinity, end / 10));
+    }
+  } else {
+    if (explicitLimit && dt > explicitLimit.unstableAbove) {
+      beyond(`${dt} is above the explicit scheme's stability limit ${short(explicitLimit.unstableAbove)} on this mesh (2/(D·λmax)); use step ≤ ${short(explicitLimit.safeUpTo)}, or scheme: imex`);
+    } else if (explicitLimit && dt > explicitLimit.safeUpTo) {
       warnings.push(`time.step ${dt} exceeds the explicit scheme's positivity bound ${explicitLimit.safeUpTo.toPrecision(3)} on this mesh: values may oscillate or turn negative; ${explicitLimit.unstableAbove.toPrecision(3)} is certainly unstable`);
     }
-  } else if (dt === undefined) {
-    if (model?.suggestedStep === undefined) problems.add(['time'], 'missing "step": for your own kinetics give a time step (the implicit–explicit scheme is stable for any step in diffusion, but the reactions set the accuracy)');
-    else dt = wholeSteps(Math.min(model.suggestedStep, end / 10));
+    if (reactionLimit && dt > reactionLimit.limit * (1 + 1e-12)) {
+      beyond(`${dt} makes the explicit reaction update unstable at the steady state (|1 + dt·λ| = ${reactionLimit.growth(dt).toPrecision(4)} > 1, homogeneous oscillations grow): the reactions' limit is ${short(reactionLimit.limit)}; use time.step ≤ ${short(REACTION_STEP_FRACTION * reactionLimit.limit)}`);
+    }
   }
   problems.fail(ctx.file);
   const step = dt!;
@@ -85,21 +104,25 @@ export function resolveTime(ctx: ResolveContext, kin: KineticsPlan, system: Reac
     problems.fail(ctx.file);
   }
   if (Math.abs(steps * step - end) > 1e-9 * end) warnings.push(`time.end ${end} is not a whole number of steps of ${step}; the run ends at ${steps * step}`);
-  // the reactions are stepped explicitly in both schemes: forward Euler is stable at the steady
-  // state only if |1 + dt·λ| ≤ 1 for every eigenvalue λ of its Jacobian
-  if (uniformSteady || !model?.steadyStates) {
-    const J = lin.jacobian();
-    if (J) {
-      const eigen = smallMatrixEigenvalues(J, kin.species.length);
-      let limit = Infinity, worst = 0;
-      for (const [re, im] of eigen) {
-        worst = Math.max(worst, Math.hypot(1 + step * re, step * im));
-        if (re < 0) limit = Math.min(limit, (-2 * re) / (re * re + im * im));
-      }
-      if (worst > 1 + 1e-12) {
-        warnings.push(`time.step ${step} makes the explicit reaction update unstable at the steady state (|1 + dt·λ| = ${worst.toPrecision(4)} > 1): homogeneous oscillations will grow${Number.isFinite(limit) ? `; use time.step < ${limit.toPrecision(3)}` : ''}`);
-      }
-    }
-  }
-  return { scheme, dt: step, end, steps, solver, solverReason, tolerance: sc.time.tolerance ?? CG_TOLERANCE, explicitLimit, operators: { stiffness, mass } };
+  return { scheme, dt: step, end, steps, solver, solverReason, tolerance: sc.time.tolerance ?? CG_TOLERANCE, explicitLimit, reactionLimit: reactionLimit?.limit, operators: { stiffness, mass } };
+}
+
+/** A step for a message: three figures, in exponent form when small. */
+function short(x: number): string {
+  return x < 1e-3 ? x.toExponential(2) : x.toPrecision(3);
+}
+
+/**
+ * The largest step forward Euler takes stably through the reactions at the steady state: the
+ * minimum over the Jacobian's eigenvalues λ with Re λ < 0 of −2 Re λ/|λ|² (|1 + dt·λ| ≤ 1), with
+ * the amplification |1 + dt·λ| at a given step. Undefined without a Jacobian or a finite limit.
+ */
+function reactionStepLimit(lin: Linearisation, nS: number): { limit: number; growth: (dt: number) => number } | undefined {
+  const J = lin.jacobian();
+  if (!J) return undefined;
+  const eigen = smallMatrixEigenvalues(J, nS);
+  let limit = Infinity;
+  for (const [re, im] of eigen) if (re < 0) limit = Math.min(limit, (-2 * re) / (re * re + im * im));
+  if (!Number.isFinite(limit)) return undefined;
+  return { limit, growth: (dt) => Math.max(...eigen.map(([re, im]) => Math.hypot(1 + dt * re, dt * im))) };
 }

@@ -252,6 +252,85 @@ time: {scheme: explicit, step: 0.01, end: 5}
     expect(existsSync(join(out, 'final.ply'))).toBe(true);
   });
 
+  it('a run that stays homogeneous reports 0 patches and no events, at its noisy start and as the noise decays', async () => {
+    // Schnakenberg a = 0.1, b = 0.9, d = 10, γ = 1: the dispersion relation (Murray 2003, Mathematical
+    // Biology II, ch. 2) gives the unstable band 0.2 < k² < 0.5, and the unit sphere's first nonzero eigenvalue is 2 (l(l+1), l = 1):
+    // no mode is unstable, so the 1 % noise decays to the uniform state (u, v) = (a + b, b/(a + b)²) = (1, 0.9).
+    const file = scenario('homogeneous.yaml', `
+mesh: {shape: sphere, vertices: 500}
+kinetics: {model: schnakenberg, parameters: {gamma: 1}}
+initial: {noise: 0.01}
+time: {step: 0.01, end: 20}
+output: {every: 2, frames: false}
+`);
+    const out = temp.path('homogeneous');
+    expect((await run('run', file, '--out', out, '--progress', 'none')).code).toBe(0);
+    const record = JSON.parse(readFileSync(join(out, 'record.json'), 'utf8'));
+    const frames = record.analysis.frames as { contrast: number; floor: number; patches: unknown[] }[];
+    expect(frames.length).toBe(11);
+    // the starting noise spans about 2 × 0.01; the floor is 4 × 0.01
+    expect(frames[0].contrast).toBeGreaterThan(0.015);
+    expect(frames[0].floor).toBeCloseTo(0.04, 12);
+    expect(frames[frames.length - 1].contrast).toBeLessThan(1e-4);
+    for (const f of frames) expect(f.patches).toEqual([]);
+    expect(record.analysis.events).toEqual([]);
+    expect(record.analysis.floorRule).toMatch(/contrast \(max − min\) above 0\.04/);
+  });
+
+  it('a spectrum that cannot reach the unstable band is named in a warning that says what to do', async () => {
+    const file = scenario('short-spectrum.yaml', `
+mesh: {shape: sphere, vertices: 300}
+kinetics: {model: schnakenberg, parameters: {gamma: 1000}}
+initial: {noise: 0.01}
+time: {step: 0.0001, end: 0.001}
+output: {every: 0.001, frames: false}
+`);
+    const out = temp.path('short-spectrum');
+    const r = await run('run', file, '--out', out, '--progress', 'none');
+    expect(r.code).toBe(0);
+    // band 200 < k² < 500 (γ × the γ = 1 band); covering it on the unit sphere takes 1.25·500 + 12 = 637
+    // modes (Weyl's law with the margin), more than a 252-vertex mesh has
+    expect(r.err).toMatch(/warning: the unstable band reaches k² = 500\.0; the 251 surface modes computed reach λ = [0-9.]+ \(covering the band takes about 637, more than a mesh of 252 vertices has\)[^\n]*refine the mesh/);
+    expect(r.err.match(/unstable band reaches/g)).toHaveLength(1);
+    const record = JSON.parse(readFileSync(join(out, 'record.json'), 'utf8'));
+    expect(record.analysis.modesUpTo).toBeLessThan(500);
+    expect(record.warnings.some((w: string) => /refine the mesh/.test(w))).toBe(true);
+    const rows = readFileSync(join(out, 'metrics.csv'), 'utf8').trim().split('\n');
+    const col = rows[0].split(',').indexOf('patches');
+    for (const row of rows.slice(1)) expect(row.split(',')[col]).toBe('0');
+  });
+
+  it('events begin at the first frame that holds a pattern, not with the noise it grew from; the spectrum reaches the unstable band', async () => {
+    // the same model at γ = 200 puts the l = 6…9 clusters of the unit sphere (k² = l(l+1) from 42 to 90)
+    // inside the band γ·(0.2, 0.5) = (40, 100): the noise grows into spots
+    const file = scenario('from-noise.yaml', `
+seed: 5
+mesh: {shape: sphere, vertices: 2000}
+kinetics: {model: schnakenberg, parameters: {gamma: 200}}
+initial: {noise: 0.01}
+time: {scheme: imex, step: 0.001, end: 2}
+output: {every: 0.25, frames: false}
+`);
+    const out = temp.path('from-noise');
+    expect((await run('run', file, '--out', out, '--progress', 'none')).code).toBe(0);
+    const record = JSON.parse(readFileSync(join(out, 'record.json'), 'utf8'));
+    const frames = record.analysis.frames as { time: number; patches: unknown[] }[];
+    const first = frames.findIndex((f) => f.patches.length > 0);
+    expect(frames[0].patches).toEqual([]);
+    expect(first).toBeGreaterThan(0);
+    expect(frames[frames.length - 1].patches.length).toBeGreaterThan(5);
+    for (const e of record.analysis.events as { time: number }[]) expect(e.time).toBeGreaterThan(frames[first].time);
+    // the default 40 modes end near λ = 30 here; the run computes enough to pass the band's upper edge, 100
+    expect(record.analysis.modesUpTo).toBeGreaterThan(100);
+    expect(record.warnings.join('\n')).not.toMatch(/unstable band reaches/);
+    // the pattern's dominant cluster is the predicted one, l = 8 (72 on the exact sphere; the P1
+    // eigenvalues of a 2000-vertex sphere lie a few per cent below, O(h²))
+    const predicted = record.analysis.prediction.predicted;
+    expect(predicted.multiplicity).toBe(17);
+    expect(Math.abs(predicted.eigenvalue - 72) / 72).toBeLessThan(0.05);
+    expect((frames[frames.length - 1] as { dominantEigenvalue?: number }).dominantEigenvalue).toBeCloseTo(predicted.eigenvalue, 9);
+  });
+
   it('stops at steady state when asked', async () => {
     const file = scenario('steady.yaml', `
 mesh: {shape: sphere, vertices: 500}

@@ -52,6 +52,28 @@ describe('scenario resolvers, one section at a time', () => {
     expect(10 / (r.output.everySteps - 1)).toBeGreaterThan(0.9 * positivity);
   });
 
+  it('time: the default step stays inside the reactions\' forward-Euler limit; a given step beyond it is refused unless time.allowUnstable', () => {
+    // Schnakenberg (a, b) = (0.1, 0.9) at (u, v) = (a + b, b/(a + b)²): J = γ·[[(b − a)/(a + b), (a + b)²], [−2b/(a + b), −(a + b)²]]
+    // = γ·[[0.8, 1], [−1.8, −1]], trace −0.2γ, det γ², eigenvalues γ(−0.1 ± i√0.99) (Murray 2003, ch. 2, with
+    // these a, b). Forward Euler needs |1 + dt·λ| ≤ 1: dt ≤ −2 Re λ/|λ|² = 0.2/γ = 6.67e-5 at γ = 3000.
+    const gamma = 3000, limit = 0.2 / gamma;
+    const text = (time: string) => `mesh: {shape: ellipsoid, vertices: 800}\nkinetics: {model: schnakenberg, parameters: {gamma: ${gamma}}}\ninitial: {noise: 0.01}\ntime: {${time}}\n`;
+    for (const scheme of ['imex', 'explicit']) {
+      const r = resolveScenarioText(text(`scheme: ${scheme}, end: 0.01`));
+      const amplification = Math.hypot(1 - 0.1 * gamma * r.dt, Math.sqrt(0.99) * gamma * r.dt);
+      expect(r.dt).toBeLessThanOrEqual(0.5 * limit * (1 + 1e-12));
+      expect(amplification).toBeLessThan(1);
+      expect(r.summary.time).toMatchObject({ reactionLimit: expect.closeTo(limit, 12) });
+    }
+    expect(() => resolveScenarioText(text('step: 1e-4, end: 0.01'))).toThrow(/time\.step: 0\.0001 makes the explicit reaction update unstable at the steady state \(\|1 \+ dt·λ\| = 1\.0[0-9]* > 1[^\n]*limit is 6\.67e-5[^\n]*time\.allowUnstable: true/);
+    const allowed = resolveScenarioText(text('step: 1e-4, end: 0.01, allowUnstable: true'));
+    expect(allowed.dt).toBe(1e-4);
+    expect(allowed.warnings.join('\n')).toMatch(/limit is 6\.67e-5.*\(time\.allowUnstable: true\)/);
+    // the explicit scheme's diffusion limit 2/(D·λmax) is refused the same way, and allowed the same way
+    expect(() => resolveScenarioText('mesh: {shape: sphere, vertices: 300}\nkinetics: {model: gray-scott}\ndiffusion: {u: 1, v: 1}\ntime: {scheme: explicit, step: 10, end: 100}\n')).toThrow(/stability limit [0-9.e-]+ on this mesh[^\n]*time\.allowUnstable: true/);
+    expect(resolveScenarioText('mesh: {shape: sphere, vertices: 300}\nkinetics: {model: gray-scott}\ndiffusion: {u: 1, v: 1}\ntime: {scheme: explicit, step: 10, end: 100, allowUnstable: true}\n').warnings.join('\n')).toMatch(/stability limit/);
+  });
+
   it('growth: every law the schema names has a registry entry, and uniform growth scales the area by e^{2rt}', () => {
     expect(Object.keys(GROWTH_LAWS).sort()).toEqual([...SCENARIO_SCHEMA.properties.growth.properties.law.enum].sort());
     const r = resolveScenarioText('mesh: {shape: sphere, vertices: 642}\nkinetics: {model: schnakenberg}\ntime: {end: 1}\ngrowth: {law: uniform, rate: 0.3}\n');
