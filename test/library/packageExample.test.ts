@@ -47,7 +47,7 @@ describe('Placode as a package (README: Use from TypeScript)', () => {
       expect(eigenvalues[0]).toBe(0);
       for (let k = 1; k < 20; k++) expect(eigenvalues[k]).toBeGreaterThanOrEqual(eigenvalues[k - 1]);
       expect(eigenvalues[1]).toBeGreaterThan(0);
-      expect(lines[3]).toMatch(/^after 100 steps \(t = 0\.100\): u in \[/);
+      expect(lines[3]).toMatch(/^after 100 steps \(t = 0\.020\): u in \[/);
     } finally {
       rmSync(dir, { recursive: true, force: true });
     }
