@@ -90,7 +90,8 @@ export { writeOff } from './io/writeOff.ts';
 export { writeGlb, writeAnimatedGlb } from './io/writeGlb.ts';
 export { encodeSnapshot, type SnapshotFormat } from './io/encodeSnapshot.ts';
 export { colorizeField, colormapTable, COLORMAPS, type ColormapName } from './io/colormap.ts';
-export { surfaceFigurePng, surfaceFigureSvg, type FigureSpec, type FigurePanel } from './io/surfaceFigure.ts';
+export { surfaceFigureSvg, type FigureSpec, type FigurePanel } from './io/surfaceFigure.ts';
+export { rasterSurfaces, SHADINGS, type Shading } from './io/surfaceRaster.ts';
 export { VIEW_PRESETS } from './io/surfaceView.ts';
 
 export * as defaults from './defaults.ts';

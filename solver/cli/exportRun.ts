@@ -5,6 +5,7 @@ import { colorizeField } from '../io/colormap.ts';
 import { writeAnimatedGlb } from '../io/writeGlb.ts';
 import { encodeSnapshot, type SnapshotFormat } from '../io/encodeSnapshot.ts';
 import { runFrames, loadSnapshot, speciesRange } from '../run/runFrames.ts';
+import { runPainting } from '../run/runPainting.ts';
 import { colormapOption, fixedRangeOption } from '../io/paintingOptions.ts';
 import { UsageError } from '../UsageError.ts';
 import { ANIMATION_SECONDS, DEFAULT_COLORMAP } from '../defaults.ts';
@@ -32,8 +33,9 @@ export interface ExportOptions {
  * `placode export`: frames of a run (or one frame file) as PLY (binary or
  * ASCII; colours and every species), binary glTF (COLOR_0 in linear colour,
  * normals, species as `_NAME` attributes), OBJ with per-vertex colours, or CSV
- * of x, y, z and the species. Colour range per file, over the whole run, or
- * fixed. Never overwrites without `force`. Returns the files written.
+ * of x, y, z and the species. Painted as the run painted its frames (species,
+ * colormap, fixed range) unless told otherwise; colour range per file, over
+ * the whole run, or fixed. Never overwrites without `force`. Returns the files written.
  */
 export async function exportRun(input: string, o: ExportOptions): Promise<string[]> {
   const listed = runFrames(input);
@@ -49,14 +51,18 @@ export async function exportRun(input: string, o: ExportOptions): Promise<string
     if (o.frame >= frameFiles.length) throw new UsageError(`--frame ${o.frame}: the run has frames 0–${frameFiles.length - 1}`);
     chosen = [frameFiles[o.frame]];
   } else chosen = [files[files.length - 1]];
-  const colormap = colormapOption(o.colormap ?? DEFAULT_COLORMAP);
+  // painted as the run painted its frames unless told otherwise
+  const painting = runPainting(input);
+  const colormap = colormapOption(o.colormap ?? painting?.colormap ?? DEFAULT_COLORMAP);
   const snapshots = chosen.map(loadSnapshot);
   const speciesNames = Object.keys(snapshots[0].fields);
-  const species = o.species ?? speciesNames[speciesNames.length - 1];
+  const species = o.species ?? (painting?.colour && speciesNames.includes(painting.colour) ? painting.colour : speciesNames[speciesNames.length - 1]);
   if (!speciesNames.includes(species)) throw new UsageError(`--species ${species}: the frames hold ${speciesNames.join(', ')}`);
   let range: [number, number] | undefined;
   const rangeText = o.range ?? 'frame';
-  if (rangeText === 'run') {
+  if (o.range === undefined && Array.isArray(painting?.range) && species === painting.colour) {
+    range = painting.range;
+  } else if (rangeText === 'run') {
     range = speciesRange(isRun ? files : chosen, species);
   } else if (rangeText !== 'frame') {
     range = fixedRangeOption(rangeText, 'frame, run, or min:max with max > min');

@@ -13,6 +13,8 @@ export interface ImportedMesh {
   vertexData: Record<string, Float64Array>;
   /** what the reader did to the data (welding, triangulation) */
   notes: string[];
+  /** the file's comment lines (PLY header comments) */
+  comments?: string[];
 }
 
 /** Parse mesh file contents already in memory (no file system: usable in a browser worker). */

@@ -27,6 +27,8 @@ interface PlyHeader {
   /** lines of the header, end_header included */
   headerLines: number;
   elements: { name: string; count: number; props: PlyProperty[] }[];
+  /** the header's comment lines, without the word "comment" */
+  comments: string[];
 }
 
 const hasOwn = (o: object, k: string) => Object.prototype.hasOwnProperty.call(o, k);
@@ -41,9 +43,11 @@ export function parsePlyHeader(bytes: Uint8Array, name: string): PlyHeader {
   const lines = probe.slice(0, end).split(/\r?\n/);
   let format: PlyHeader['format'] | null = null;
   const elements: PlyHeader['elements'] = [];
+  const comments: string[] = [];
   for (let i = 1; i < lines.length; i++) {
     const t = lines[i].trim().split(/\s+/);
-    if (t[0] === 'format') {
+    if (t[0] === 'comment') comments.push(lines[i].trim().slice('comment'.length).trim());
+    else if (t[0] === 'format') {
       if (t[1] !== 'ascii' && t[1] !== 'binary_little_endian' && t[1] !== 'binary_big_endian') {
         throw new MeshFileError(name, `line ${i + 1}: unknown PLY format "${t[1]}"`);
       }
@@ -65,7 +69,7 @@ export function parsePlyHeader(bytes: Uint8Array, name: string): PlyHeader {
     }
   }
   if (!format) throw new MeshFileError(name, 'has no "format" line in its header');
-  return { format, headerBytes, headerLines: lines.length + 1, elements };
+  return { format, headerBytes, headerLines: lines.length + 1, elements, comments };
 }
 
 /** What the reader keeps of one record: called with each scalar property value and each face's corners. */
@@ -141,7 +145,7 @@ export function parsePly(source: ByteSource): ImportedMesh {
   if (header.format === 'ascii') readAsciiBody(source, header, sink);
   else readBinaryBody(source, header, sink);
   const notes = polygons > 0 ? [`triangulated ${polygons} polygons with more than three corners`] : [];
-  return { mesh: makeMesh(positions, tri.array()), format: 'ply', vertexData, notes };
+  return { mesh: makeMesh(positions, tri.array()), format: 'ply', vertexData, notes, comments: header.comments };
 }
 
 /** One line per record: scalars in order, a list as its count then its items; `float` values rounded to single precision as declared. */

@@ -1,14 +1,15 @@
-import { PNG } from 'pngjs';
 import type { Mesh } from '../mesh/Mesh.ts';
 import { colorizeField, colormapTable, type ColormapName } from './colormap.ts';
 import { projectSurface, fitScale, niceTicks, tickLabel } from './surfaceView.ts';
-import { drawText, textWidth, GLYPH_HEIGHT } from './bitmapFont.ts';
+import { rasterSurfaces, SHADING_AMBIENT, type Shading } from './surfaceRaster.ts';
+import { encodePng, base64 } from './encodePng.ts';
+import { FIGURE_FONT_FAMILY, FIGURE_TYPE, textWidthEm, svgText } from './figureType.ts';
 
 export interface FigurePanel {
   /** the surface and its values; without them the cell is left blank (a sweep's unfinished run) */
   mesh?: Mesh;
   values?: ArrayLike<number>;
-  /** caption under the panel (time, parameter value) */
+  /** caption under the panel (time, parameter value, eigenvalue) */
   label?: string;
 }
 
@@ -16,199 +17,166 @@ export interface FigureSpec {
   panels: FigurePanel[];
   /** grid columns for several panels (a contact sheet) */
   columns?: number;
+  /** what the colour bar is titled with (the species or field) */
   species: string;
   colormap: ColormapName;
   /** colour range; default: over all panels */
   range?: [number, number];
   view: { azimuth: number; elevation: number };
   title?: string;
+  /** size in pixels; the text is sized in points, so `dpi` (default 150) sets its size in pixels */
   width: number;
   height: number;
+  dpi?: number;
+  /** lighting of the surface (default soft) */
+  shading?: Shading;
+  /** the surface as an embedded image under vector text (default), or as vector triangles */
+  surface?: 'image' | 'vector';
 }
+
+interface Box { left: number; top: number; width: number; height: number }
 
 interface Layout {
-  cells: { left: number; top: number; width: number; height: number }[];
+  /** pixels per point */
+  pt: number;
+  cells: Box[];
   /** one scale for every panel (pixels per unit), so a growing surface is seen growing */
   scale: number;
-  bar: { left: number; top: number; width: number; height: number };
-  titleY: number;
+  bar: Box;
   range: [number, number];
+  ticks: { value: number; label: string; end: boolean }[];
 }
 
-const BAR_SPACE = 120;
-
-function layout(spec: FigureSpec, unit = 1): Layout {
+/** Colour range over the panels (or the given one), widened when flat. */
+function panelRange(spec: FigureSpec): [number, number] {
+  if (spec.range) return spec.range;
   let lo = Infinity, hi = -Infinity;
   for (const p of spec.panels) if (p.values) for (let i = 0; i < p.values.length; i++) { lo = Math.min(lo, p.values[i]); hi = Math.max(hi, p.values[i]); }
   if (!(lo <= hi)) lo = hi = 0;
-  const range: [number, number] = spec.range ?? (hi > lo ? [lo, hi] : [lo - 0.5, lo + 0.5]);
-  const u = unit;
-  const top = (spec.title ? 40 : 12) * u;
-  const cols = Math.max(1, Math.min(spec.columns ?? Math.ceil(Math.sqrt(spec.panels.length)), spec.panels.length));
-  const rows = Math.ceil(spec.panels.length / cols);
-  const labelSpace = (spec.panels.some((p) => p.label) ? 22 : 0) * u;
-  const cw = (spec.width - (BAR_SPACE + 12) * u) / cols, ch = (spec.height - top - 12 * u) / rows;
-  const cells = spec.panels.map((_, k) => ({ left: 12 * u + (k % cols) * cw, top: top + Math.floor(k / cols) * ch, width: cw, height: ch - labelSpace }));
-  const barH = Math.min(spec.height - top - 60 * u, 320 * u);
-  const scale = Math.min(...spec.panels.map((p, k) => (p.mesh ? fitScale(p.mesh, spec.view, cells[k]) : Infinity)));
-  return { scale: Number.isFinite(scale) ? scale : 1, cells, bar: { left: spec.width - (BAR_SPACE - 20) * u, top: top + (spec.height - top - barH) / 2, width: 18 * u, height: barH }, titleY: 26 * u, range };
+  return hi > lo ? [lo, hi] : [lo - 0.5, lo + 0.5];
 }
 
-const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;');
+/** A number as type sets it: the minus sign, not a hyphen. */
+const typeset = (s: string) => s.replace(/-/g, '−');
+
+/** An end value of the colour bar: four significant figures. */
+function endLabel(v: number): string {
+  if (v === 0) return '0';
+  const a = Math.abs(v);
+  return typeset(a >= 1e4 || a < 1e-3 ? v.toExponential(2) : String(Number(v.toPrecision(4))));
+}
+
+function layout(spec: FigureSpec): Layout {
+  const pt = (spec.dpi ?? 150) / 72;
+  const T = FIGURE_TYPE;
+  const range = panelRange(spec);
+  const margin = T.margin * pt;
+  const top = margin + (spec.title ? T.title * 1.7 * pt : 0);
+  // colour bar: its ticks' labels decide the space it takes
+  const tickPx = T.tick * pt;
+  const nice = niceTicks(range[0], range[1]);
+  const labels = [endLabel(range[0]), endLabel(range[1]), ...nice.map((v) => typeset(tickLabel(v)))];
+  const labelWidth = Math.max(...labels.map((l) => textWidthEm(l))) * tickPx;
+  const speciesWidth = textWidthEm(spec.species) * T.barTitle * pt;
+  const barSpace = Math.max(margin + T.barWidth * pt + T.tickLength * pt + T.tickGap * pt + labelWidth + margin, speciesWidth + 2 * margin);
+  const cols = Math.max(1, Math.min(spec.columns ?? Math.ceil(Math.sqrt(spec.panels.length)), spec.panels.length));
+  const rows = Math.ceil(spec.panels.length / cols);
+  const captionSpace = (spec.panels.some((p) => p.label) ? T.caption * 1.8 : 0) * pt;
+  const cw = (spec.width - barSpace - margin) / cols, ch = (spec.height - top - margin) / rows;
+  const cells = spec.panels.map((_, k) => ({ left: margin + (k % cols) * cw, top: top + Math.floor(k / cols) * ch, width: cw, height: Math.max(1, ch - captionSpace) }));
+  const barTitleSpace = T.barTitle * 2 * pt;
+  const available = spec.height - top - margin - barTitleSpace - tickPx;
+  const barH = Math.max(20 * pt, Math.min(available, 0.75 * (spec.height - top - margin)));
+  const bar = { left: spec.width - barSpace + margin, top: top + barTitleSpace + (available - barH) / 2, width: T.barWidth * pt, height: barH };
+  const yOf = (v: number) => bar.top + bar.height * (1 - (v - range[0]) / (range[1] - range[0]));
+  // the end values always; a round tick only where its label stays clear of the ends' labels
+  const ticks = [{ value: range[0], label: endLabel(range[0]), end: true }, { value: range[1], label: endLabel(range[1]), end: true }];
+  for (const v of nice) {
+    if (Math.abs(yOf(v) - yOf(range[0])) > 1.5 * tickPx && Math.abs(yOf(v) - yOf(range[1])) > 1.5 * tickPx) ticks.push({ value: v, label: typeset(tickLabel(v)), end: false });
+  }
+  const scale = Math.min(...spec.panels.map((p, k) => (p.mesh ? fitScale(p.mesh, spec.view, cells[k]) : Infinity)));
+  return { pt, cells, scale: Number.isFinite(scale) ? scale : 1, bar, range, ticks };
+}
 
 /**
- * The coloured surface as true vector SVG: triangles depth-sorted back to front
- * (painter's algorithm), each filled with the mean of its vertex colours times
- * a headlight shade; a colour bar with labelled ticks and the species name;
- * an optional title; several panels make a contact sheet with captions.
+ * A figure of the coloured surface (or a sheet of several, with captions) as
+ * SVG: by default the surfaces as one embedded PNG (z-buffered, antialiased,
+ * at the figure's pixel size) under vector text, so a sheet of many frames
+ * stays small; with `surface: 'vector'` as depth-sorted triangles (painter's
+ * algorithm). A colour bar with its end values and round ticks clear of their
+ * labels, the species (or field) above it, an optional title. Text is sized in
+ * points: the SVG's physical size is width × height pixels at `dpi`.
  */
 export function surfaceFigureSvg(spec: FigureSpec): string {
   const L = layout(spec);
-  const out: string[] = [`<svg xmlns="http://www.w3.org/2000/svg" width="${spec.width}" height="${spec.height}" viewBox="0 0 ${spec.width} ${spec.height}" font-family="Helvetica, Arial, sans-serif" font-size="13">`, `<rect width="${spec.width}" height="${spec.height}" fill="white"/>`];
-  if (spec.title) out.push(`<text class="title" x="${(spec.width - BAR_SPACE) / 2}" y="${L.titleY}" text-anchor="middle" font-size="17">${esc(spec.title)}</text>`);
+  const T = FIGURE_TYPE, pt = L.pt;
+  const dpi = spec.dpi ?? 150;
+  const shading = spec.shading ?? 'soft';
+  const W = spec.width, H = spec.height;
+  const out: string[] = [
+    `<svg xmlns="http://www.w3.org/2000/svg" width="${((W * 72) / dpi).toFixed(2)}pt" height="${((H * 72) / dpi).toFixed(2)}pt" viewBox="0 0 ${W} ${H}" font-family="${FIGURE_FONT_FAMILY}">`,
+    `<rect width="${W}" height="${H}" fill="white"/>`,
+  ];
+  const drawn = spec.panels.flatMap((p, k) => (p.mesh && p.values ? [{ mesh: p.mesh, values: p.values, box: L.cells[k] }] : []));
+  if ((spec.surface ?? 'image') === 'image') {
+    if (drawn.length) {
+      const image = rasterSurfaces(drawn, W, H, { colormap: spec.colormap, range: L.range, view: spec.view, scale: L.scale, shading });
+      out.push(`<image class="surface" x="0" y="0" width="${W}" height="${H}" href="data:image/png;base64,${base64(encodePng(image))}"/>`);
+    }
+  } else {
+    for (const panel of drawn) out.push(...vectorSurface(panel, spec, L, SHADING_AMBIENT[shading]));
+  }
+  if (spec.title) out.push(svgText(spec.title, L.bar.left / 2, T.margin * pt + T.title * pt, T.title * pt, { anchor: 'middle', cls: 'title' }));
   spec.panels.forEach((panel, k) => {
     const cell = L.cells[k];
-    if (panel.label) out.push(`<text class="label" x="${cell.left + cell.width / 2}" y="${cell.top + cell.height + 16}" text-anchor="middle">${esc(panel.label)}</text>`);
-    if (!panel.mesh || !panel.values) return;
-    const v = projectSurface(panel.mesh, spec.view, cell, undefined, L.scale);
-    const colors = colorizeField(panel.values, spec.colormap, L.range);
-    const tri = panel.mesh.triangles;
-    const order = Array.from({ length: tri.length / 3 }, (_, t) => t);
-    const depth = (t: number) => v.depth[tri[3 * t]] + v.depth[tri[3 * t + 1]] + v.depth[tri[3 * t + 2]];
-    order.sort((a, b) => depth(a) - depth(b));
-    out.push(`<g class="surface">`);
-    for (const t of order) {
-      const a = tri[3 * t], b = tri[3 * t + 1], c = tri[3 * t + 2];
-      const s = (v.shade[a] + v.shade[b] + v.shade[c]) / 3;
-      const rgb = [0, 1, 2].map((d) => Math.round(((colors[3 * a + d] + colors[3 * b + d] + colors[3 * c + d]) / 3) * s));
-      const fill = `rgb(${rgb.join(',')})`;
-      out.push(`<polygon points="${v.x[a].toFixed(1)},${v.y[a].toFixed(1)} ${v.x[b].toFixed(1)},${v.y[b].toFixed(1)} ${v.x[c].toFixed(1)},${v.y[c].toFixed(1)}" fill="${fill}" stroke="${fill}" stroke-width="0.4"/>`);
-    }
-    out.push('</g>');
+    if (panel.label) out.push(svgText(panel.label, cell.left + cell.width / 2, cell.top + cell.height + T.caption * 1.3 * pt, T.caption * pt, { anchor: 'middle', cls: 'label' }));
   });
-  const lut = colormapTable(spec.colormap);
-  const B = L.bar, steps = 64;
-  out.push(`<g class="colorbar">`);
-  for (let s = 0; s < steps; s++) {
-    const k = Math.round(((steps - 1 - s) / (steps - 1)) * 255);
-    out.push(`<rect x="${B.left}" y="${(B.top + (s * B.height) / steps).toFixed(2)}" width="${B.width}" height="${(B.height / steps + 0.4).toFixed(2)}" fill="rgb(${lut[3 * k]},${lut[3 * k + 1]},${lut[3 * k + 2]})"/>`);
-  }
-  out.push(`<rect x="${B.left}" y="${B.top}" width="${B.width}" height="${B.height}" fill="none" stroke="black"/>`);
-  for (const t of niceTicks(L.range[0], L.range[1])) {
-    const y = B.top + B.height * (1 - (t - L.range[0]) / (L.range[1] - L.range[0]));
-    out.push(`<line x1="${B.left + B.width}" y1="${y.toFixed(2)}" x2="${B.left + B.width + 5}" y2="${y.toFixed(2)}" stroke="black"/><text class="tick" x="${B.left + B.width + 8}" y="${(y + 4).toFixed(2)}">${tickLabel(t)}</text>`);
-  }
-  out.push(`<text class="species" x="${B.left + B.width / 2}" y="${B.top - 10}" text-anchor="middle" font-size="15">${esc(spec.species)}</text>`);
-  out.push('</g>', '</svg>');
+  out.push(...colourBar(spec, L));
+  out.push('</svg>');
   return out.join('\n') + '\n';
 }
 
-/**
- * The same figure rasterised (z-buffer, Gouraud-interpolated colours, 2×2
- * supersampling) into a PNG of `width`×`height` pixels, with the DPI recorded
- * in a pHYs chunk. Labels use the built-in 5×7 pixel font.
- */
-export function surfaceFigurePng(spec: FigureSpec, dpi = 150): Uint8Array {
-  const ss = 2;
-  const W = spec.width * ss, H = spec.height * ss;
-  const L = layout({ ...spec, width: W, height: H }, ss);
-  const rgb = new Float32Array(W * H * 3).fill(255);
-  const zbuf = new Float64Array(W * H).fill(-Infinity);
-  spec.panels.forEach((panel, k) => {
-    if (!panel.mesh || !panel.values) return;
-    const v = projectSurface(panel.mesh, spec.view, L.cells[k], undefined, L.scale);
-    const colors = colorizeField(panel.values, spec.colormap, L.range);
-    const tri = panel.mesh.triangles;
-    for (let t = 0; t < tri.length; t += 3) {
-      const a = tri[t], b = tri[t + 1], c = tri[t + 2];
-      const x0 = v.x[a], y0 = v.y[a], x1 = v.x[b], y1 = v.y[b], x2 = v.x[c], y2 = v.y[c];
-      const den = (y1 - y2) * (x0 - x2) + (x2 - x1) * (y0 - y2);
-      if (den === 0) continue;
-      const minX = Math.max(0, Math.floor(Math.min(x0, x1, x2))), maxX = Math.min(W - 1, Math.ceil(Math.max(x0, x1, x2)));
-      const minY = Math.max(0, Math.floor(Math.min(y0, y1, y2))), maxY = Math.min(H - 1, Math.ceil(Math.max(y0, y1, y2)));
-      for (let py = minY; py <= maxY; py++) {
-        for (let px = minX; px <= maxX; px++) {
-          const qx = px + 0.5, qy = py + 0.5;
-          const w0 = ((y1 - y2) * (qx - x2) + (x2 - x1) * (qy - y2)) / den;
-          const w1 = ((y2 - y0) * (qx - x2) + (x0 - x2) * (qy - y2)) / den;
-          const w2 = 1 - w0 - w1;
-          if (w0 < -1e-9 || w1 < -1e-9 || w2 < -1e-9) continue;
-          const z = w0 * v.depth[a] + w1 * v.depth[b] + w2 * v.depth[c];
-          const o = py * W + px;
-          if (z <= zbuf[o]) continue;
-          zbuf[o] = z;
-          const s = w0 * v.shade[a] + w1 * v.shade[b] + w2 * v.shade[c];
-          for (let d = 0; d < 3; d++) rgb[3 * o + d] = (w0 * colors[3 * a + d] + w1 * colors[3 * b + d] + w2 * colors[3 * c + d]) * s;
-        }
-      }
-    }
-  });
-  const ink = (r: number, g: number, b: number) => (px: number, py: number) => {
-    if (px < 0 || py < 0 || px >= W || py >= H) return;
-    const o = 3 * (py * W + px);
-    rgb[o] = r; rgb[o + 1] = g; rgb[o + 2] = b;
-  };
-  const black = ink(0, 0, 0);
-  const lut = colormapTable(spec.colormap);
-  const B = L.bar;
-  for (let py = Math.round(B.top); py < Math.round(B.top + B.height); py++) {
-    const k = Math.round((1 - (py - B.top) / B.height) * 255);
-    for (let px = Math.round(B.left); px < Math.round(B.left + B.width); px++) ink(lut[3 * k], lut[3 * k + 1], lut[3 * k + 2])(px, py);
+/** A panel's triangles, back to front, each filled with the mean of its vertex colours times the shade. */
+function vectorSurface(panel: { mesh: Mesh; values: ArrayLike<number>; box: Box }, spec: FigureSpec, L: Layout, ambient: number): string[] {
+  const v = projectSurface(panel.mesh, spec.view, panel.box, ambient, L.scale);
+  const colors = colorizeField(panel.values, spec.colormap, L.range);
+  const tri = panel.mesh.triangles;
+  const order = Array.from({ length: tri.length / 3 }, (_, t) => t);
+  const depth = (t: number) => v.depth[tri[3 * t]] + v.depth[tri[3 * t + 1]] + v.depth[tri[3 * t + 2]];
+  order.sort((a, b) => depth(a) - depth(b));
+  const out = ['<g class="surface">'];
+  for (const t of order) {
+    const a = tri[3 * t], b = tri[3 * t + 1], c = tri[3 * t + 2];
+    const s = (v.shade[a] + v.shade[b] + v.shade[c]) / 3;
+    const rgb = [0, 1, 2].map((d) => Math.round(((colors[3 * a + d] + colors[3 * b + d] + colors[3 * c + d]) / 3) * s));
+    const fill = `rgb(${rgb.join(',')})`;
+    out.push(`<polygon points="${v.x[a].toFixed(1)},${v.y[a].toFixed(1)} ${v.x[b].toFixed(1)},${v.y[b].toFixed(1)} ${v.x[c].toFixed(1)},${v.y[c].toFixed(1)}" fill="${fill}" stroke="${fill}" stroke-width="0.4"/>`);
   }
-  for (let px = Math.round(B.left); px <= Math.round(B.left + B.width); px++) { black(px, Math.round(B.top)); black(px, Math.round(B.top + B.height)); }
-  for (let py = Math.round(B.top); py <= Math.round(B.top + B.height); py++) { black(Math.round(B.left), py); black(Math.round(B.left + B.width), py); }
-  const scale = 2 * ss;
-  for (const t of niceTicks(L.range[0], L.range[1])) {
-    const y = Math.round(B.top + B.height * (1 - (t - L.range[0]) / (L.range[1] - L.range[0])));
-    for (let dx = 0; dx < 5 * ss; dx++) for (let w = 0; w < ss; w++) black(Math.round(B.left + B.width) + dx, y + w);
-    drawText(tickLabel(t), Math.round(B.left + B.width + 8 * ss), y - Math.round((GLYPH_HEIGHT * scale) / 2), scale, black);
-  }
-  drawText(spec.species, Math.round(B.left + B.width / 2 - textWidth(spec.species, scale) / 2), Math.round(B.top - 12 * ss - GLYPH_HEIGHT * scale), scale, black);
-  if (spec.title) drawText(spec.title, Math.round((W - BAR_SPACE * ss) / 2 - textWidth(spec.title, scale) / 2), 8 * ss, scale, black);
-  spec.panels.forEach((panel, k) => {
-    if (!panel.label) return;
-    const cell = L.cells[k];
-    drawText(panel.label, Math.round(cell.left + cell.width / 2 - textWidth(panel.label, scale) / 2), Math.round(cell.top + cell.height + 4 * ss), scale, black);
-  });
-  // 2×2 box filter down to the figure size
-  const png = new PNG({ width: spec.width, height: spec.height });
-  for (let y = 0; y < spec.height; y++) {
-    for (let x = 0; x < spec.width; x++) {
-      for (let d = 0; d < 3; d++) {
-        let s = 0;
-        for (let a = 0; a < ss; a++) for (let b = 0; b < ss; b++) s += rgb[3 * ((y * ss + a) * W + x * ss + b) + d];
-        png.data[4 * (y * spec.width + x) + d] = Math.round(s / (ss * ss));
-      }
-      png.data[4 * (y * spec.width + x) + 3] = 255;
-    }
-  }
-  return withPhys(new Uint8Array(PNG.sync.write(png)), dpi);
-}
-
-/** Insert a pHYs chunk (pixels per metre) after IHDR: the PNG standard's way to record DPI. */
-function withPhys(png: Uint8Array, dpi: number): Uint8Array {
-  const ppm = Math.round(dpi / 0.0254);
-  const chunk = new Uint8Array(4 + 4 + 9 + 4);
-  const view = new DataView(chunk.buffer);
-  view.setUint32(0, 9);
-  chunk.set([0x70, 0x48, 0x59, 0x73], 4); // "pHYs"
-  view.setUint32(8, ppm);
-  view.setUint32(12, ppm);
-  chunk[16] = 1; // unit: metre
-  view.setUint32(17, crc32(chunk.subarray(4, 17)));
-  const ihdrEnd = 8 + 4 + 4 + 13 + 4;
-  const out = new Uint8Array(png.length + chunk.length);
-  out.set(png.subarray(0, ihdrEnd), 0);
-  out.set(chunk, ihdrEnd);
-  out.set(png.subarray(ihdrEnd), ihdrEnd + chunk.length);
+  out.push('</g>');
   return out;
 }
 
-function crc32(bytes: Uint8Array): number {
-  let c = 0xffffffff;
-  for (const b of bytes) {
-    c ^= b;
-    for (let k = 0; k < 8; k++) c = c & 1 ? 0xedb88320 ^ (c >>> 1) : c >>> 1;
+/** The colour bar: the colormap as a gradient, framed, with ticks and labels to its right and the species above. */
+function colourBar(spec: FigureSpec, L: Layout): string[] {
+  const T = FIGURE_TYPE, pt = L.pt, B = L.bar;
+  const lut = colormapTable(spec.colormap);
+  const stops: string[] = [];
+  for (let s = 0; s <= 32; s++) {
+    const k = Math.round((s / 32) * 255);
+    stops.push(`<stop offset="${(s / 32).toFixed(4)}" stop-color="rgb(${lut[3 * k]},${lut[3 * k + 1]},${lut[3 * k + 2]})"/>`);
   }
-  return (c ^ 0xffffffff) >>> 0;
+  const out = [
+    '<g class="colorbar">',
+    `<defs><linearGradient id="bar" x1="0" y1="1" x2="0" y2="0">${stops.join('')}</linearGradient></defs>`,
+    `<rect x="${B.left.toFixed(2)}" y="${B.top.toFixed(2)}" width="${B.width.toFixed(2)}" height="${B.height.toFixed(2)}" fill="url(#bar)" stroke="black" stroke-width="${(0.5 * pt).toFixed(2)}"/>`,
+  ];
+  const x0 = B.left + B.width, x1 = x0 + T.tickLength * pt, tx = x1 + T.tickGap * pt;
+  for (const t of L.ticks) {
+    const y = B.top + B.height * (1 - (t.value - L.range[0]) / (L.range[1] - L.range[0]));
+    out.push(`<line class="${t.end ? 'end' : 'tick'}" x1="${x0.toFixed(2)}" y1="${y.toFixed(2)}" x2="${x1.toFixed(2)}" y2="${y.toFixed(2)}" stroke="black" stroke-width="${(0.5 * pt).toFixed(2)}"/>`);
+    out.push(svgText(t.label, tx, y + 0.36 * T.tick * pt, T.tick * pt, { cls: t.end ? 'end' : 'tick' }));
+  }
+  out.push(svgText(spec.species, B.left + B.width / 2, B.top - T.barTitle * 0.8 * pt, T.barTitle * pt, { anchor: 'middle', cls: 'species' }));
+  out.push('</g>');
+  return out;
 }

@@ -2,7 +2,8 @@ import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { RUN_FILES } from '../run/runFiles.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
-import { surfaceFigurePng, type FigurePanel } from '../io/surfaceFigure.ts';
+import type { FigurePanel } from '../io/surfaceFigure.ts';
+import { surfaceFigurePng } from '../io/surfaceFigurePng.ts';
 import { axisValues } from './expandSweep.ts';
 import { snapshotField } from '../run/runFrames.ts';
 import { colormapOption, fixedRangeOption, viewOption } from '../io/paintingOptions.ts';
@@ -116,9 +117,10 @@ export function collectSweep(dirArg: string, o: CollectOptions = {}): { csv: str
   const columnsOnSheet = Math.max(1, Math.min(across, panels.length));
   const rowsOnSheet = Math.ceil(panels.length / columnsOnSheet);
   const thumb = o.thumbnail ?? SHEET_THUMBNAIL;
+  // type at 96 dpi: 9-point captions are 12 pixels, in the 24 left under each thumbnail
   const width = Math.min(8000, columnsOnSheet * thumb + 150);
   const height = Math.min(8000, rowsOnSheet * (thumb + 24) + 60);
   const sheet = o.sheet ?? join(dir, 'sheet.png');
-  writeFileAtomic(sheet, surfaceFigurePng({ panels, columns: columnsOnSheet, species: species ?? '', colormap, range, view, title: `${plan.name}: ${plan.varying.map((p) => p.split('.').pop()).join(' x ')}`, width, height }), true);
+  writeFileAtomic(sheet, surfaceFigurePng({ panels, columns: columnsOnSheet, species: species ?? '', colormap, range, view, title: `${plan.name}: ${plan.varying.map((p) => p.split('.').pop()).join(' × ')}`, width, height, dpi: 96 }), true);
   return { csv, sheet, rows: rows.length, missing };
 }

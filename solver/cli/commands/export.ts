@@ -4,7 +4,7 @@ import { parseCount } from '../options.ts';
 import { UsageError } from '../../UsageError.ts';
 import { ANIMATION_SECONDS, COLORMAP_CHOICES, DEFAULT_COLORMAP, SNAPSHOT_FORMAT_CHOICES } from '../../defaults.ts';
 
-type ExportCommandOptions = { format: (typeof SNAPSHOT_FORMAT_CHOICES)[number]; out: string; frame?: string; all?: boolean; species?: string; colormap: string; range: string; ascii?: boolean; animate?: boolean; duration: string; force?: boolean };
+type ExportCommandOptions = { format: (typeof SNAPSHOT_FORMAT_CHOICES)[number]; out: string; frame?: string; all?: boolean; species?: string; colormap?: string; range?: string; ascii?: boolean; animate?: boolean; duration: string; force?: boolean };
 
 export const registerExport: RegisterCommand = (program) => {
   program
@@ -15,9 +15,9 @@ export const registerExport: RegisterCommand = (program) => {
     .requiredOption('-o, --out <path>', 'output file (one frame) or directory (with --all)')
     .option('--frame <n>', 'frame index of a run (default: the final state)')
     .option('--all', 'every frame of the run (and final), into the --out directory')
-    .option('--species <name>', 'species painted as colours (default: the last one)')
-    .option('--colormap <name>', `colormap (${COLORMAP_CHOICES.join(' ')})`, DEFAULT_COLORMAP)
-    .option('--range <r>', 'colour range: frame, run, or min:max', 'frame')
+    .option('--species <name>', "species painted as colours (default: the run's output.colour, else the last one)")
+    .option('--colormap <name>', `colormap (${COLORMAP_CHOICES.join(' ')}; default: the run's output.colormap, else ${DEFAULT_COLORMAP})`)
+    .option('--range <r>', "colour range: frame, run, or min:max (default: the run's fixed output.range, else frame)")
     .option('--ascii', 'ASCII PLY instead of binary')
     .option('--animate', 'glb: one file whose animation plays every frame (growth and colours)')
     .option('--duration <s>', 'seconds of playback for --animate', String(ANIMATION_SECONDS))
