@@ -6,6 +6,11 @@ import { parameterMapSvg } from '../io/parameterMapSvg.ts';
 import { saveModeFile } from './saveModeFile.ts';
 import { UsageError } from '../UsageError.ts';
 import { formatNumber } from './options.ts';
+import { growthRate } from '../analysis/dispersion.ts';
+import { dispersionFigureSvg } from '../io/dispersionFigure.ts';
+import { svgToPng } from '../io/svgToPng.ts';
+import type { Eigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
+import { FIGURE_SIZE } from '../defaults.ts';
 
 export interface StabilityOptions {
   json?: boolean;
@@ -14,6 +19,12 @@ export interface StabilityOptions {
   state?: number;
   map?: string[];
   mapOut?: string;
+  /** the dispersion figure, .svg or .png */
+  plot?: string;
+  plotX?: 'k2' | 'wavelength';
+  width?: number;
+  height?: number;
+  dpi?: number;
   force?: boolean;
 }
 
@@ -33,6 +44,8 @@ const fmt = (x: number) => formatNumber(x, 5);
 export function runStability(file: string, o: StabilityOptions, out: (s: string) => void): void {
   if (o.map && o.map.length !== 2) throw new UsageError('--map takes exactly two parameters (repeat it: --map F=…  --map k=…)');
   if (o.map && !o.mapOut) throw new UsageError('--map needs --map-out PREFIX (writes PREFIX.csv and PREFIX.svg)');
+  if (o.plot && !/\.(svg|png)$/i.test(o.plot)) throw new UsageError(`--plot ${o.plot}: write .svg or .png`);
+  if (o.plotX && o.plotX !== 'k2' && o.plotX !== 'wavelength') throw new UsageError(`--plot-x ${o.plotX}: choose k2 or wavelength`);
   const r = loadScenarioFile(file).resolved;
   const report = stabilityReport(r, { maxModes: o.maxModes, stateIndex: o.state });
   const { eigenpairs, ...data } = report;
@@ -53,8 +66,13 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
     writeFileAtomic(`${o.mapOut}.svg`, parameterMapSvg(cells, xAxis, yAxis, `${r.name}: ${r.model}, steady state ${report.state}`), o.force);
     mapFiles = [`${o.mapOut}.csv`, `${o.mapOut}.svg`];
   }
+  if (o.plot) {
+    if (!report.jacobian) throw new UsageError('--plot: no steady state to analyse, so no dispersion relation to draw');
+    writeFileAtomic(o.plot, dispersionPlot(r.name, r.model, report, eigenpairs, o), o.force);
+  }
+  const files = [...(o.paint ? [o.paint] : []), ...mapFiles, ...(o.plot ? [o.plot] : [])];
   if (o.json) {
-    out(JSON.stringify({ ...data, files: [...(o.paint ? [o.paint] : []), ...mapFiles] }, null, 2) + '\n');
+    out(JSON.stringify({ ...data, files }, null, 2) + '\n');
     return;
   }
   const t = report.turing;
@@ -90,6 +108,19 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
       out(`  predicted initial pattern: mode ${p.index}${p.multiplicity > 1 ? `–${p.index + p.multiplicity - 1} (multiplicity ${p.multiplicity})` : ''}, eigenvalue ${fmt(p.eigenvalue)}, growth rate ${fmt(p.rate)}\n`);
     }
   }
-  if (o.paint) out(`  wrote ${o.paint}\n`);
-  for (const f of mapFiles) out(`  wrote ${f}\n`);
+  for (const f of files) out(`  wrote ${f}\n`);
+}
+
+/** The dispersion figure of a report: the curve, the band, every computed surface eigenvalue cluster on it. */
+function dispersionPlot(name: string, model: string, report: ReturnType<typeof stabilityReport>, eigenpairs: Eigenpairs | null, o: StabilityOptions): Uint8Array | string {
+  const J = report.jacobian!.flat();
+  const D = Object.values(report.diffusion);
+  const marks = (eigenpairs?.clusters ?? []).map((c) => ({ eigenvalue: c.mean, multiplicity: c.size, rate: growthRate(J, D, c.mean) }));
+  const width = o.width ?? FIGURE_SIZE.width, height = o.height ?? Math.round(FIGURE_SIZE.width * 0.62), dpi = o.dpi ?? FIGURE_SIZE.dpi;
+  const svg = dispersionFigureSvg({
+    dispersion: report.dispersion, band: report.turing?.band ?? null, marks,
+    predicted: report.predicted ? { eigenvalue: report.predicted.eigenvalue, multiplicity: report.predicted.multiplicity, rate: report.predicted.rate } : null,
+    x: o.plotX, title: `${name}: ${model}, steady state ${report.state}`, width, height, dpi,
+  });
+  return o.plot!.toLowerCase().endsWith('.png') ? svgToPng(svg, width, dpi) : svg;
 }

@@ -37,6 +37,32 @@ describe('placode stability', () => {
     expect(painted.vertexData.mode.length).toBe(2562);
   });
 
+  it('draws the dispersion relation: the marked surface eigenvalues are those of --json, the band and the predicted cluster as it reports them', async () => {
+    const file = scenario('schnak-plot.yaml', 'mesh: {shape: sphere, vertices: 2562}\nkinetics: {model: schnakenberg, parameters: {gamma: 50}}\ntime: {end: 1}\n');
+    const svg = join(dir, 'dispersion.svg'), png = join(dir, 'dispersion.png');
+    const r = await run('stability', file, '--json', '--plot', svg);
+    expect(r.code, r.err).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.files).toEqual([svg]);
+    const text = readFileSync(svg, 'utf8');
+    const attr = (tag: string, name: string) => Number(new RegExp(`<${tag}[^>]*data-${name}="([^"]+)"`).exec(text)![1]);
+    expect(attr('rect class="band"', 'from')).toBe(j.turing.band[0]);
+    expect(attr('rect class="band"', 'to')).toBe(j.turing.band[1]);
+    expect(attr('circle class="predicted"', 'eigenvalue')).toBe(j.predicted.eigenvalue);
+    expect(attr('circle class="predicted"', 'rate')).toBe(j.predicted.rate);
+    // the growing marks (filled) are the clusters of the modes in the band, with their multiplicities
+    const marks = [...text.matchAll(/<circle class="mode" data-eigenvalue="([^"]+)" data-multiplicity="(\d+)" data-rate="([^"]+)"/g)].map((m) => ({ eigenvalue: Number(m[1]), multiplicity: Number(m[2]), rate: Number(m[3]) }));
+    const growing = marks.filter((m) => m.rate > 0);
+    expect(growing.reduce((a, m) => a + m.multiplicity, 0)).toBe(j.modes.length);
+    for (const mode of j.modes) expect(growing.some((m) => Math.abs(m.eigenvalue - mode.eigenvalue) < 1e-3 * mode.eigenvalue)).toBe(true);
+    expect(growing.map((m) => degree(m.eigenvalue))).toEqual([3, 4]);
+    // axes carry units; the same plot as PNG
+    expect(text).toMatch(/class="xlabel"[^>]*>k<tspan[^>]*baseline-shift="super">2<\/tspan> \(length<tspan[^>]*>−2<\/tspan>\)/);
+    expect(text).toMatch(/class="ylabel"[^>]*>growth rate Re σ \(time<tspan/);
+    expect((await run('stability', file, '--plot', png, '--plot-x', 'wavelength')).code).toBe(0);
+    expect(readFileSync(png).subarray(1, 4).toString('latin1')).toBe('PNG');
+  });
+
   it('writes a parameter-plane map as CSV and SVG with labelled axes', async () => {
     const file = join(dir, 'schnak.yaml');
     const prefix = join(dir, 'map');

@@ -50,7 +50,7 @@ function inkBox(png: PNG, region: { x0: number; x1: number; y0: number; y1: numb
 /** A font's cap height in em: the height of 'H' over units per em, read by opentype.js (a general-purpose font parser). */
 function capHeightEm(ttf: Buffer): number {
   const opentype = createRequire(import.meta.url)('opentype.js') as { parse(b: ArrayBuffer): { unitsPerEm: number; charToGlyph(c: string): { getBoundingBox(): { y1: number; y2: number } } } };
-  const font = opentype.parse(ttf.buffer.slice(ttf.byteOffset, ttf.byteOffset + ttf.byteLength));
+  const font = opentype.parse(ttf.buffer.slice(ttf.byteOffset, ttf.byteOffset + ttf.byteLength) as ArrayBuffer);
   const box = font.charToGlyph('H').getBoundingBox();
   return (box.y2 - box.y1) / font.unitsPerEm;
 }
@@ -119,7 +119,7 @@ describe('placode figure', () => {
       expect(doc.getElementsByTagName('polygon').length).toBe(vector ? mesh.triangles.length / 3 : 0);
       expect(doc.getElementsByTagName('image').length).toBe(vector ? 0 : 1);
       const texts = Array.from(doc.getElementsByTagName('text'));
-      const number = (t: Element) => Number((t.textContent ?? '').replace(/−/g, '-'));
+      const number = (t: { textContent: string | null }) => Number((t.textContent ?? '').replace(/−/g, '-'));
       expect(texts.filter((t) => t.getAttribute('class') === 'end').map(number)).toEqual([-1, 1]);
       expect(texts.filter((t) => t.getAttribute('class') === 'tick').map(number)).toEqual([-0.5, 0, 0.5]);
       // ticks end before their labels start
