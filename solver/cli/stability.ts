@@ -11,6 +11,8 @@ import { dispersionFigureSvg } from '../io/dispersionFigure.ts';
 import { svgToPng } from '../io/svgToPng.ts';
 import type { Eigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
 import { FIGURE_SIZE } from '../defaults.ts';
+import { bandThroughGrowth, type BandCourse } from '../analysis/bandThroughGrowth.ts';
+import { bandCourseFigureSvg } from '../io/bandCourseFigure.ts';
 
 export interface StabilityOptions {
   json?: boolean;
@@ -22,6 +24,12 @@ export interface StabilityOptions {
   /** the dispersion figure, .svg or .png */
   plot?: string;
   plotX?: 'k2' | 'wavelength';
+  /** a growing scenario: the band through growth as a figure, .svg or .png */
+  growthPlot?: string;
+  /** surfaces sampled through growth where it is not a similarity */
+  samples?: number;
+  /** progress lines (stderr) */
+  progress?: (line: string) => void;
   width?: number;
   height?: number;
   dpi?: number;
@@ -45,6 +53,7 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
   if (o.map && o.map.length !== 2) throw new UsageError('--map takes exactly two parameters (repeat it: --map F=…  --map k=…)');
   if (o.map && !o.mapOut) throw new UsageError('--map needs --map-out PREFIX (writes PREFIX.csv and PREFIX.svg)');
   if (o.plot && !/\.(svg|png)$/i.test(o.plot)) throw new UsageError(`--plot ${o.plot}: write .svg or .png`);
+  if (o.growthPlot && !/\.(svg|png)$/i.test(o.growthPlot)) throw new UsageError(`--growth-plot ${o.growthPlot}: write .svg or .png`);
   if (o.plotX && o.plotX !== 'k2' && o.plotX !== 'wavelength') throw new UsageError(`--plot-x ${o.plotX}: choose k2 or wavelength`);
   const r = loadScenarioFile(file).resolved;
   const report = stabilityReport(r, { maxModes: o.maxModes, stateIndex: o.state });
@@ -70,9 +79,24 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
     if (!report.jacobian) throw new UsageError('--plot: no steady state to analyse, so no dispersion relation to draw');
     writeFileAtomic(o.plot, dispersionPlot(r.name, r.model, report, eigenpairs, o), o.force);
   }
-  const files = [...(o.paint ? [o.paint] : []), ...mapFiles, ...(o.plot ? [o.plot] : [])];
+  let growth: BandCourse | null = null;
+  if (r.growth && report.turing?.band && Number.isFinite(report.turing.band[1])) {
+    growth = bandThroughGrowth(r.mesh, r.growth.makeLaw(r.mesh.positions, []), report.turing.band, r.end, {
+      samples: o.samples, maxModes: o.maxModes,
+      onProgress: (done, of) => { if (of > 1) o.progress?.(`  band through growth: surface ${done} of ${of}`); },
+    });
+  } else if (o.growthPlot) {
+    throw new UsageError(r.growth ? '--growth-plot: the analysed state has no finite unstable band to follow' : '--growth-plot: the scenario has no growth section');
+  }
+  if (o.growthPlot && growth) {
+    const width = o.width ?? FIGURE_SIZE.width, height = o.height ?? Math.round(FIGURE_SIZE.width * 0.62), dpi = o.dpi ?? FIGURE_SIZE.dpi;
+    const svg = bandCourseFigureSvg(growth, { y: o.plotX, title: `${r.name}: the band through growth`, width, height, dpi });
+    writeFileAtomic(o.growthPlot, o.growthPlot.toLowerCase().endsWith('.png') ? svgToPng(svg, width, dpi) : svg, o.force);
+  }
+  const files = [...(o.paint ? [o.paint] : []), ...mapFiles, ...(o.plot ? [o.plot] : []), ...(o.growthPlot ? [o.growthPlot] : [])];
+  const growthData = growth && { method: growth.method, end: growth.end, notes: growth.notes, clusters: growth.clusters.map(({ eigenvalues: _, ...c }) => c) };
   if (o.json) {
-    out(JSON.stringify({ ...data, files }, null, 2) + '\n');
+    out(JSON.stringify({ ...data, ...(growthData ? { growth: growthData } : {}), files }, null, 2) + '\n');
     return;
   }
   const t = report.turing;
@@ -106,6 +130,15 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
     if (report.predicted) {
       const p = report.predicted;
       out(`  predicted initial pattern: mode ${p.index}${p.multiplicity > 1 ? `–${p.index + p.multiplicity - 1} (multiplicity ${p.multiplicity})` : ''}, eigenvalue ${fmt(p.eigenvalue)}, growth rate ${fmt(p.rate)}\n`);
+    }
+  }
+  if (growth) {
+    out(`through growth to t = ${fmt(growth.end)}: the band is fixed in k², the surface's eigenvalues fall as it grows (${growth.method === 'similarity' ? 'a similarity: λ(t) = λ(0)/ρ(t)²' : 'recomputed on the grown surface'})\n`);
+    for (const n of growth.notes) out(`  note: ${n}\n`);
+    if (!growth.clusters.length) out(`  no eigenvalue cluster reaches the band within the course\n`);
+    else {
+      out(`  cluster  λ(0)          ×   enters the band   leaves it\n`);
+      for (const c of growth.clusters) out(`  ${String(c.index).padStart(7)}  ${fmt(c.eigenvalue0).padEnd(12)} ${String(c.multiplicity).padStart(2)}   ${(c.enters === null ? '—' : c.enters === 0 ? '0 (in it)' : `t = ${fmt(c.enters)}`).padEnd(16)}  ${c.leaves === null ? '—' : `t = ${fmt(c.leaves)}`}\n`);
     }
   }
   for (const f of files) out(`  wrote ${f}\n`);

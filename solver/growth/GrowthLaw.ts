@@ -9,6 +9,8 @@ export interface GrowthLaw {
   /** one line for records and logs */
   readonly description: string;
   advance(mesh: Mesh, t0: number, t1: number, out: Float64Array): void;
+  /** for a similarity (uniform scaling): the linear scale factor at time t, so eigenvalues go as λ(0)/ρ(t)² */
+  readonly similarity?: (t: number) => number;
 }
 
 export type TimeCourse = 'exponential' | 'linear' | 'logistic';

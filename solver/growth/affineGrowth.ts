@@ -12,6 +12,7 @@ export function affineGrowth(reference: Float64Array, rates: [number, number, nu
   const uniform = rates[0] === rates[1] && rates[1] === rates[2];
   const scales = (t: number) => rates.map((r) => scaleFactor(course, r, t, capacity)) as [number, number, number];
   return {
+    similarity: uniform ? (t: number) => scaleFactor(course, rates[0], t, capacity) : undefined,
     description: uniform
       ? `uniform ${course} scaling about (${centre.join(', ')}) at rate ${rates[0]}${course === 'logistic' ? `, up to ${capacity}×` : ''}`
       : `anisotropic ${course} scaling about (${centre.join(', ')}) at rates ${rates.map((r, k) => `${r} along (${A[k].map((x) => Number(x.toPrecision(4))).join(', ')})`).join(', ')}`,

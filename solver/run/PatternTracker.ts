@@ -10,6 +10,7 @@ import { patchEvents } from '../analysis/patchEvents.ts';
 import type { VertexNeighbours } from '../analysis/thresholdComponents.ts';
 import { speciesField } from '../integrate/ReactionDiffusionSystem.ts';
 import { MAX_TRACKED_MODES } from '../defaults.ts';
+import { bandThroughGrowth } from '../analysis/bandThroughGrowth.ts';
 
 /** The vertex adjacency the pattern measures walk, kept apart from the rest of the topology. */
 function adjacency(mesh: Mesh): VertexNeighbours {
@@ -45,6 +46,14 @@ export class PatternTracker {
     this.growing = r.growth !== undefined;
     this.measured = r.species.indexOf(r.analysis.species);
     this.band = r.analysis.modes > 0 ? scenarioBand(r) : null;
+    if (this.growing && this.band && Number.isFinite(this.band[1]) && !analysis.bandEntries) {
+      const law = r.growth!.makeLaw(r.mesh.positions, []);
+      // a similarity's course costs one eigen-solve; other laws' is in `placode stability` (eigenpairs of many grown surfaces)
+      if (law.similarity) {
+        const course = bandThroughGrowth(r.mesh, law, this.band, r.end, { maxModes: Math.max(MAX_TRACKED_MODES, r.analysis.modes) });
+        analysis.bandEntries = course.clusters.map(({ eigenvalues: _, ...c }) => ({ ...c, firstEventAfter: null }));
+      }
+    }
     if (r.analysis.modes > 0 && !this.growing) this.updateEigenpairs(engine.step);
     this.neighbours = adjacency(engine.surface);
     if (!this.growing) forgetMeshTopology(r.mesh); // the stepper holds all it needs; free edges and the CSR pattern
@@ -73,6 +82,11 @@ export class PatternTracker {
     // events between frames that both hold a pattern: the first pattern out of noise is not a string of insertions
     if (this.previousLabels && count > 0) for (const e of patchEvents(this.previousLabels, pattern.labels)) a.events.push({ time: atStep * r.dt, ...e });
     this.previousLabels = count > 0 ? pattern.labels : undefined;
+    for (const entry of a.bandEntries ?? []) {
+      if (entry.enters === null || entry.firstEventAfter) continue;
+      const next = a.events.find((e) => e.time >= entry.enters! && (e.kind === 'insertion' || e.kind === 'split'));
+      if (next) entry.firstEventAfter = { time: next.time, kind: next.kind };
+    }
     return { patches: count, dominantEigenvalue: pattern.dominant?.eigenvalue };
   }
 

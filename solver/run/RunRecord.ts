@@ -29,6 +29,12 @@ export interface RunAnalysis {
   prediction?: { state: number; band: [number, number] | null; fastest: { k2: number; rate: number } | null; predicted: PredictedMode | null; notes: string[] };
   frames: { time: number; step: number; threshold: number; contrast?: number; floor?: number; patches: { area: number; centroid: [number, number, number] }[]; dominantEigenvalue?: number; dominantFraction?: number }[];
   events: { time: number; kind: string; before: number[]; after: number[] }[];
+  /**
+   * growing runs whose growth is a similarity (with modes > 0): when each surface eigenvalue cluster enters
+   * and leaves the unstable band, predicted from the starting surface (λ(t) = λ(0)/ρ(t)²), and the first
+   * measured insertion or split at or after each entry
+   */
+  bandEntries?: { index: number; multiplicity: number; eigenvalue0: number; enters: number | null; leaves: number | null; firstEventAfter: { time: number; kind: string } | null }[];
   /** growing runs: the predicted mode as the surface grows (eigenpairs recomputed at every output time) */
   predictions?: { time: number; area: number; vertices: number; predicted: PredictedMode | null }[];
   /** time the run reached steady state, when it stopped there */
