@@ -6,8 +6,11 @@ import { ScenarioError, type ScenarioProblem } from './ScenarioError.ts';
 export class Problems {
   readonly list: ScenarioProblem[] = [];
   constructor(private readonly source: ScenarioSource) {}
+  /** a problem at a path (the same problem found twice is listed once) */
   add(path: (string | number)[], message: string): void {
-    this.list.push({ path: pathText(path), message, ...this.source.locate(path) });
+    const at = pathText(path);
+    if (this.list.some((p) => p.path === at && p.message === message)) return;
+    this.list.push({ path: at, message, ...this.source.locate(path) });
   }
   get any(): boolean {
     return this.list.length > 0;

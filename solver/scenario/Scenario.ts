@@ -165,6 +165,8 @@ const fieldValue = { description: 'a number, a formula (text) or {vertexData: NA
 const growthField = { description: 'a formula in x, y, z, t or {vertexData: NAME}', oneOf: [formula, vertexData] };
 
 const nameMap = (value: object) => ({ type: 'object', additionalProperties: value, propertyNames: { pattern: '^[A-Za-z][A-Za-z0-9_]*$' } });
+/** a built-in model's parameters may also be named as its table writes them (γ, κ, ε, a₀, r₁) */
+const parameterMap = (value: object) => ({ type: 'object', additionalProperties: value, propertyNames: { pattern: '^[A-Za-zα-ω][A-Za-z0-9_α-ω₀-₉]*$' } });
 
 /** JSON Schema (draft 2020-12 subset, checked with ajv) of a scenario file. */
 export const SCENARIO_SCHEMA = {
@@ -198,7 +200,7 @@ export const SCENARIO_SCHEMA = {
         model: { type: 'string', minLength: 1 },
         species: { type: 'array', items: { type: 'string' }, minItems: 1, maxItems: 8 },
         reactions: nameMap({ type: 'string' }),
-        parameters: nameMap(fieldValue),
+        parameters: parameterMap(fieldValue),
       },
     },
     diffusion: nameMap(fieldValue),

@@ -111,7 +111,7 @@ export function resolveFields(ctx: ResolveContext, kin: KineticsPlan, loaded: Lo
     const v = sc.diffusion?.[s] ?? kin.model?.diffusion[s];
     const path = sc.diffusion?.[s] !== undefined ? ['diffusion', s] : ['kinetics'];
     if (v === undefined) {
-      problems.add(['diffusion'], `no diffusion coefficient for species "${s}" (write ${s}: 0 for one that does not move)`);
+      problems.add(['diffusion'], missingDiffusion(s));
       diffusion.push(0);
       continue;
     }
@@ -136,3 +136,6 @@ function firstNonFinite(v: number | Float64Array): number | undefined {
   for (let i = 0; i < v.length; i++) if (!Number.isFinite(v[i])) return i;
   return undefined;
 }
+
+/** The problem of a species without a diffusion coefficient (found early for your own kinetics, again here). */
+export const missingDiffusion = (s: string) => `no diffusion coefficient for species "${s}" (write ${s}: 0 for one that does not move)`;

@@ -43,7 +43,7 @@ export function resolveInitial(ctx: ResolveContext, kin: KineticsPlan, fields: F
   let uniformSteady: number[] | undefined;
   if (wantsSteady) {
     if (!model?.steadyStates) {
-      problems.add(['initial', 'values'], `your own kinetics has no closed-form steady state here: give a starting value per species (values: {${species.map((s) => `${s}: 1`).join(', ')}})`);
+      problems.add(['initial', 'values'], ownKineticsStart(species));
     } else {
       uniformSteady = steadyAt(0);
       const count = model.steadyStates(fields.constants).length;
@@ -134,3 +134,6 @@ function addSpots(ctx: ResolveContext, sp: Spots, species: readonly string[], me
     }
   }
 }
+
+/** The problem of your own kinetics started at "steady" (found early with the other requirements, again here). */
+export const ownKineticsStart = (species: readonly string[]) => `your own kinetics has no closed-form steady state here: give a starting value per species (values: {${species.map((s) => `${s}: 1`).join(', ')}})`;

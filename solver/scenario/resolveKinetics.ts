@@ -4,6 +4,9 @@ import { closestName } from './ScenarioError.ts';
 import { MODELS } from '../kinetics/models/index.ts';
 import type { KineticsModel } from '../kinetics/KineticsModel.ts';
 import { compileKinetics, KineticsError, type CompiledKinetics } from '../kinetics/compileKinetics.ts';
+import { missingDiffusion } from './resolveFields.ts';
+import { ownKineticsStart } from './resolveInitial.ts';
+import { OWN_KINETICS_STEP } from './resolveTime.ts';
 
 /** The `kinetics` section resolved: a built-in model or the user's own species and reactions, compiled. */
 export interface KineticsPlan {
@@ -36,7 +39,16 @@ export function resolveKinetics(ctx: ResolveContext): KineticsPlan {
       plan.species = [...model.species];
       plan.reactions = { ...model.reactions };
       for (const [name, p] of Object.entries(model.parameters)) plan.parameterSpec[name] = p.default;
-      for (const [name, v] of Object.entries(k.parameters ?? {})) {
+      const given = new Map<string, string>(); // ASCII name → the name the scenario used
+      for (const [written, v] of Object.entries(k.parameters ?? {})) {
+        // the model table's Greek names (γ, κ, ε, a₀ …) are the same parameters as their ASCII names
+        const ascii = asciiParameterName(written);
+        const name = !Object.hasOwn(model.parameters, written) && Object.hasOwn(model.parameters, ascii) ? ascii : written;
+        if (given.has(name)) {
+          problems.add(['kinetics', 'parameters', written], `"${written}" and "${given.get(name)}" are the same parameter, given twice; keep one`);
+          continue;
+        }
+        given.set(name, written);
         if (!Object.hasOwn(model.parameters, name)) {
           const hint = closestName(name, Object.keys(model.parameters));
           problems.add(['kinetics', 'parameters', name], `${model.title} has no parameter "${name}"${hint ? ` (did you mean "${hint}"?)` : ''}; its parameters: ${Object.keys(model.parameters).join(', ')}`);
@@ -48,7 +60,16 @@ export function resolveKinetics(ctx: ResolveContext): KineticsPlan {
     else if (!k.reactions) problems.add(['kinetics'], 'missing "reactions": a rate formula for each species');
     plan.species = k.species ?? [];
     plan.reactions = k.reactions ?? {};
+    for (const name of Object.keys(k.parameters ?? {})) {
+      if (asciiParameterName(name) !== name) problems.add(['kinetics', 'parameters', name], `your own kinetics' names are ASCII (a letter, then letters, digits or _): write "${asciiParameterName(name)}" here and in the formulas`);
+    }
     Object.assign(plan.parameterSpec, k.parameters ?? {});
+    // what your own kinetics needs that a model would supply, all named at once
+    const sc = ctx.source.scenario;
+    for (const s of plan.species) if (sc.diffusion?.[s] === undefined) problems.add(['diffusion'], missingDiffusion(s));
+    const values = sc.initial?.values ?? 'steady';
+    if (plan.species.length && (values === 'steady' || Object.values(values).includes('steady'))) problems.add(['initial', 'values'], ownKineticsStart(plan.species));
+    if ((sc.time?.scheme ?? 'imex') === 'imex' && sc.time?.step === undefined) problems.add(['time'], OWN_KINETICS_STEP);
   }
   if (plan.species.length && !problems.any) {
     try {
@@ -63,4 +84,11 @@ export function resolveKinetics(ctx: ResolveContext): KineticsPlan {
     }
   }
   return plan;
+}
+
+const GREEK: Readonly<Record<string, string>> = { 'α': 'alpha', 'β': 'beta', 'γ': 'gamma', 'δ': 'delta', 'ε': 'epsilon', 'κ': 'kappa', 'σ': 'sigma' };
+
+/** A parameter name as the scenario's ASCII names spell it: Greek letters by name, subscript digits as digits (γ → gamma, a₀ → a0, r₁ → r1). */
+export function asciiParameterName(name: string): string {
+  return [...name].map((c) => GREEK[c] ?? (c >= '₀' && c <= '₉' ? String(c.charCodeAt(0) - 0x2080) : c)).join('');
 }

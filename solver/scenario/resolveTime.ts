@@ -71,7 +71,7 @@ export function resolveTime(ctx: ResolveContext, kin: KineticsPlan, system: Reac
   if (scheme === 'explicit') explicitLimit = systemExplicitLimit(system, stiffness, mass);
   if (dt === undefined) {
     if (scheme === 'imex' && model?.suggestedStep === undefined) {
-      problems.add(['time'], 'missing "step": for your own kinetics give a time step (the implicit–explicit scheme is stable for any step in diffusion, but the reactions set the accuracy)');
+      problems.add(['time'], OWN_KINETICS_STEP);
     } else {
       const reactions = reactionLimit ? REACTION_STEP_FRACTION * reactionLimit.limit : Infinity;
       const diffusion = explicitLimit ? EXPLICIT_STEP_FRACTION * explicitLimit.safeUpTo : Infinity;
@@ -126,3 +126,6 @@ function reactionStepLimit(lin: Linearisation, nS: number): { limit: number; gro
   if (!Number.isFinite(limit)) return undefined;
   return { limit, growth: (dt) => Math.max(...eigen.map(([re, im]) => Math.hypot(1 + dt * re, dt * im))) };
 }
+
+/** The problem of your own kinetics without a step (found early with the other requirements, again here). */
+export const OWN_KINETICS_STEP = 'missing "step": for your own kinetics give a time step (the implicit–explicit scheme is stable for any step in diffusion, but the reactions set the accuracy)';
