@@ -13,6 +13,11 @@ export type ThresholdRule = 'otsu' | 'mid-range' | number;
 export interface ContrastFloor {
   absolute: number;
   relative: number;
+  /**
+   * the field's rest level per vertex (a steady state that varies over the surface): the contrast is
+   * then that of the departure from it, since a gradient of the rest state is not a pattern
+   */
+  rest?: Float64Array;
 }
 
 /** Only a field that is exactly flat (to 1e-9 of its magnitude) is no pattern. */
@@ -36,12 +41,19 @@ export interface PatternMeasure {
  * the connected patches above it with their areas and centroids, and find the
  * dominant surface-mode cluster of the field. A field whose contrast does not
  * exceed the floor has no patches: noise, or round-off around a uniform state,
- * is not a pattern.
+ * is not a pattern (nor the gradient of a steady state that varies over the
+ * surface: with `floor.rest` the contrast is that of the departure from it).
  */
 export function measurePattern(mesh: Mesh, field: ArrayLike<number>, mass: Float64Array, neighbours: VertexNeighbours, rule: ThresholdRule, eig?: Eigenpairs, floor: ContrastFloor = FLAT_ONLY): PatternMeasure {
   let lo = Infinity, hi = -Infinity;
   for (let i = 0; i < field.length; i++) { lo = Math.min(lo, field[i]); hi = Math.max(hi, field[i]); }
-  const contrast = hi - lo;
+  let contrast = hi - lo;
+  const rest = floor.rest && floor.rest.length === field.length ? floor.rest : undefined;
+  if (rest) {
+    let dlo = Infinity, dhi = -Infinity;
+    for (let i = 0; i < field.length; i++) { const d = field[i] - rest[i]; dlo = Math.min(dlo, d); dhi = Math.max(dhi, d); }
+    contrast = dhi - dlo;
+  }
   const needed = Math.max(floor.absolute, floor.relative * Math.max(Math.abs(lo), Math.abs(hi)));
   const dominant = eig ? modeSpectrum(field, mass, eig).dominant : null;
   if (!(contrast > needed)) {

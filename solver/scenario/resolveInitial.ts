@@ -12,6 +12,8 @@ export interface InitialPlan {
   steadyIndex: number;
   /** that steady state where the parameters are constants and it is needed (closed form) */
   uniformSteady?: number[];
+  /** per species started at a steady state that varies over the surface (parameters that are fields): that rest field */
+  rest?: (Float64Array | undefined)[];
 }
 
 /**
@@ -26,6 +28,7 @@ export function resolveInitial(ctx: ResolveContext, kin: KineticsPlan, fields: F
   const n = mesh.positions.length / 3;
   const nS = species.length;
   const initial = new Float64Array(n * nS);
+  const rest: (Float64Array | undefined)[] = [];
   const init = ctx.source.scenario.initial ?? {};
   const steadyIndex = init.steadyState ?? 0;
   const anyFieldParam = fields.parameters.some((p) => typeof p !== 'number');
@@ -72,6 +75,10 @@ export function resolveInitial(ctx: ResolveContext, kin: KineticsPlan, fields: F
         problems.add(['initial', 'values'], `no starting value for species "${species[s]}"`);
       } else if (v === 'steady') {
         for (let i = 0; i < n; i++) initial[i * nS + s] = anyFieldParam ? (steadyAt(i)?.[s] ?? NaN) : uniformSteady![s];
+        if (anyFieldParam) {
+          rest[s] = new Float64Array(n);
+          for (let i = 0; i < n; i++) rest[s]![i] = initial[i * nS + s];
+        }
       } else {
         const f = fields.fieldValue(v, ['initial', 'values', species[s]], fields.constants);
         if (f !== undefined) for (let i = 0; i < n; i++) initial[i * nS + s] = typeof f === 'number' ? f : f[i];
@@ -97,7 +104,7 @@ export function resolveInitial(ctx: ResolveContext, kin: KineticsPlan, fields: F
       problems.fail(ctx.file);
     }
   }
-  return { initial, steadyIndex, uniformSteady };
+  return { initial, steadyIndex, uniformSteady, rest };
 }
 
 type Spots = NonNullable<NonNullable<ResolveContext['source']['scenario']['initial']>['spots']>;

@@ -64,12 +64,6 @@ export function resolveKinetics(ctx: ResolveContext): KineticsPlan {
       if (asciiParameterName(name) !== name) problems.add(['kinetics', 'parameters', name], `your own kinetics' names are ASCII (a letter, then letters, digits or _): write "${asciiParameterName(name)}" here and in the formulas`);
     }
     Object.assign(plan.parameterSpec, k.parameters ?? {});
-    // what your own kinetics needs that a model would supply, all named at once
-    const sc = ctx.source.scenario;
-    for (const s of plan.species) if (sc.diffusion?.[s] === undefined) problems.add(['diffusion'], missingDiffusion(s));
-    const values = sc.initial?.values ?? 'steady';
-    if (plan.species.length && (values === 'steady' || Object.values(values).includes('steady'))) problems.add(['initial', 'values'], ownKineticsStart(plan.species));
-    if ((sc.time?.scheme ?? 'imex') === 'imex' && sc.time?.step === undefined) problems.add(['time'], OWN_KINETICS_STEP);
   }
   if (plan.species.length && !problems.any) {
     try {
@@ -82,6 +76,14 @@ export function resolveKinetics(ctx: ResolveContext): KineticsPlan {
         problems.add(path, p.message);
       }
     }
+  }
+  if (k.model === undefined && plan.species.length) {
+    // what your own kinetics needs that a model would supply, named at once with its formulas' problems
+    const sc = ctx.source.scenario;
+    for (const s of plan.species) if (sc.diffusion?.[s] === undefined) problems.add(['diffusion'], missingDiffusion(s));
+    const values = sc.initial?.values ?? 'steady';
+    if (values === 'steady' || Object.values(values).includes('steady')) problems.add(['initial', 'values'], ownKineticsStart(plan.species));
+    if ((sc.time?.scheme ?? 'imex') === 'imex' && sc.time?.step === undefined) problems.add(['time'], OWN_KINETICS_STEP);
   }
   return plan;
 }

@@ -47,6 +47,9 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   // ---- stepping, outputs, growth
   const time = resolveTime(ctx, kin, system, lin, start.uniformSteady);
   const { output, analysis } = resolveOutputPlan(ctx, painting, time, mesh.positions.length / 3);
+  // a steady state that varies over the surface is the level a pattern stands out from, not a pattern itself
+  const restField = start.rest?.[kin.species.indexOf(analysis.species)];
+  if (restField) analysis.floor = { ...analysis.floor, rest: restField };
   const growth = sc.growth ? resolveGrowth(ctx, sc.growth, mesh, fields, lin, env) : undefined;
 
   const name = sc.name ?? file.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, '');

@@ -300,6 +300,31 @@ output: {every: 0.001, frames: false}
     for (const row of rows.slice(1)) expect(row.split(',')[col]).toBe('0');
   });
 
+  it('a steady state that varies over the surface is not a pattern: its noisy start has no patches', async () => {
+    // Gierer–Meinhardt with a source a that grows along x: the steady state (u*, v*) varies over the
+    // paddle, and the 1 % noise on u sits on that gradient
+    const file = scenario('gradient.yaml', `
+seed: 5
+mesh: {shape: limb-bud, vertices: 1500}
+kinetics: {model: gierer-meinhardt, parameters: {gamma: 250, a: "0.05 + 0.05*x/3", b: 1, kappa: 0.1, d: 30}}
+initial: {values: steady, noise: {amplitude: 0.01, species: [u]}}
+time: {scheme: imex, step: 0.0004, end: 0.0004}
+output: {every: 0.0004, frames: false}
+analysis: {modes: 0}
+`);
+    const out = temp.path('gradient');
+    expect((await run('run', file, '--out', out, '--progress', 'none')).code).toBe(0);
+    const record = JSON.parse(readFileSync(join(out, 'record.json'), 'utf8'));
+    const u = speciesFromProperties(loadMeshFile(join(out, 'final.ply')).vertexData).u;
+    // the raw field spans more than the floor (the gradient of u* and the noise) …
+    expect(Math.max(...u) - Math.min(...u)).toBeGreaterThan(0.045);
+    // … but its departure from the steady state is the noise: about 2 × 0.01, under the floor 4 × 0.01
+    const f0 = record.analysis.frames[0];
+    expect(f0.contrast).toBeGreaterThan(0.015);
+    expect(f0.contrast).toBeLessThan(0.04);
+    expect(f0.patches).toEqual([]);
+  });
+
   it('events begin at the first frame that holds a pattern, not with the noise it grew from; the spectrum reaches the unstable band', async () => {
     // the same model at γ = 200 puts the l = 6…9 clusters of the unit sphere (k² = l(l+1) from 42 to 90)
     // inside the band γ·(0.2, 0.5) = (40, 100): the noise grows into spots

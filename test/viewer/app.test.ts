@@ -30,7 +30,7 @@ mesh: {shape: sphere, params: {radius: 0.25}, vertices: 400}
 kinetics: {model: gray-scott, parameters: {F: 0.03, k: 0.062}}
 initial: {spots: {count: 3, radius: 0.08, values: {u: 0.5, v: 0.25}}}
 time: {scheme: imex, step: 1, end: 400}
-output: {every: 100}
+output: {every: 100, colour: u, colormap: magma, range: [0.2, 1]}
 growth: {law: uniform, rate: 0.002, refine: {edgeGrowth: 1.4}}
 analysis: {modes: 0}
 `;
@@ -141,7 +141,7 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     expect(pixelChange(before.png, shot.png)).toBeGreaterThan(0.01);
     expect(await page.textContent('#status-time')).toMatch(/t = \d+/);
     // the stability tab describes the state analysed
-    expect(await page.textContent('#stability-summary')).toMatch(/steady state u = 1, v = 0/);
+    await page.waitForFunction(() => /steady state u = 1, v = 0/.test(document.querySelector('#stability-summary')!.textContent ?? ''), null, { timeout: 60_000 });
     await close(page);
   }, 150_000);
 
@@ -208,6 +208,11 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     const first = await state(page);
     expect(first.serverRun!.frames).toBe(5); // t = 0, 100, …, 400
     expect(first.view).toBe('frame');
+    // painted as the run painted its frames: u on magma over the fixed [0.2, 1]
+    expect(await page.inputValue('#paint-species')).toBe('u');
+    expect(await page.inputValue('#paint-colormap')).toBe('magma');
+    expect(await page.inputValue('#paint-range')).toBe('fixed');
+    expect([await page.inputValue('#range-min'), await page.inputValue('#range-max')]).toEqual(['0.2', '1']);
     const record = JSON.parse(readFileSync(join(dir, 'growing-run', 'record.json'), 'utf8'));
     expect(first.shown!.vertices).toBe(record.mesh.vertices);
     await page.evaluate(() => {

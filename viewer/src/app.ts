@@ -503,7 +503,7 @@ byId('run-scenario').addEventListener('click', () => {
 });
 
 async function loadServerRun() {
-  let info: { name: string; frames: { file: string; time: number }[]; final?: string; scenarioText?: string; output?: { colour?: string; colormap?: string } };
+  let info: { name: string; frames: { file: string; time: number }[]; final?: string; scenarioText?: string; output?: { colour?: string; colormap?: string; range?: [number, number] | 'frame' } };
   try {
     const res = await fetch('api/run');
     if (!res.ok) throw new Error(`${res.status} ${res.statusText}`);
@@ -523,8 +523,16 @@ async function loadServerRun() {
   updateTimeline();
   runScenarioText = info.scenarioText;
   byId('run-scenario').hidden = !runScenarioText;
+  // painted as the run painted its frames: species, colormap and a fixed range
   if (info.output?.colormap && (COLORMAP_NAMES as string[]).includes(info.output.colormap)) colormapSelect.value = info.output.colormap;
   preferredSpecies = info.output?.colour;
+  const range = info.output?.range;
+  if (Array.isArray(range) && range.length === 2) {
+    rangeSelect.value = 'fixed';
+    byId<HTMLInputElement>('range-min').value = String(range[0]);
+    byId<HTMLInputElement>('range-max').value = String(range[1]);
+  }
+  byId('fixed-range').hidden = rangeSelect.value !== 'fixed';
   speciesSelect.value = '';
   // frame the camera on the last frame (a growing run's largest), then show the first
   await showFrame(timeline.length - 1);
