@@ -86,6 +86,21 @@ export const STABILITY_MAX_MODES = 200;
 /** Most eigenpairs a growing run computes at each output to follow its predicted mode. */
 export const MAX_TRACKED_MODES = 300;
 
+// ---- mesh quality and resolution
+/** A triangle with an angle under this many degrees is a sliver (a rule of thumb, common practice). */
+export const SLIVER_ANGLE_DEGREES = 5;
+/**
+ * Warn when a mesh's explicit step limit is under this share of a well-shaped mesh's of the same size
+ * (built-in shapes reach 10–50 %: graded edges cost a few ×; a rule of thumb for "a few bad triangles").
+ */
+export const EXPLICIT_STEP_RATIO_WARNING = 0.02;
+/**
+ * Fewest mean edges per fastest-growing wavelength 2π/√k² before a warning. From a refinement study
+ * on the unit sphere (DEVELOPERS.md): the P1 eigenvalue of a mode resolved by N edges per wavelength
+ * is low by about 2.4 %·(10/N)², second order as Dziuk (1988) proves; at 8 edges about 4 %.
+ */
+export const MIN_EDGES_PER_WAVELENGTH = 8;
+
 // ---- painting, figures, exports
 export const DEFAULT_COLORMAP = 'viridis';
 /** Names of the colormaps (`solver/io/colormap.ts` has their tables). */

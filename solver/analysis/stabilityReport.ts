@@ -87,9 +87,14 @@ export function modesToCoverBand(area: number, band: [number, number] | null | u
 
 /** The unstable band of the analysed steady state (no surface needed), or null. */
 export function scenarioBand(r: StabilityProblem): [number, number] | null {
+  return scenarioTuring(r)?.band ?? null;
+}
+
+/** The Turing analysis of the analysed steady state (no surface needed), or null without one. */
+export function scenarioTuring(r: StabilityProblem): TuringAnalysis | null {
   const values = constantValues(r);
   const state = steadyStatesOf(r, values.parameters, r.seed)[r.steadyStateIndex];
-  return state ? turingAnalysis(state.jacobian, values.diffusion).band : null;
+  return state ? turingAnalysis(state.jacobian, values.diffusion) : null;
 }
 
 /**

@@ -10,7 +10,7 @@ import { growthRate } from '../analysis/dispersion.ts';
 import { dispersionFigureSvg } from '../io/dispersionFigure.ts';
 import { svgToPng } from '../io/svgToPng.ts';
 import type { Eigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
-import { FIGURE_SIZE } from '../defaults.ts';
+import { FIGURE_SIZE, SLIVER_ANGLE_DEGREES } from '../defaults.ts';
 import { bandThroughGrowth, type BandCourse } from '../analysis/bandThroughGrowth.ts';
 import { bandCourseFigureSvg } from '../io/bandCourseFigure.ts';
 
@@ -95,13 +95,18 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
   }
   const files = [...(o.paint ? [o.paint] : []), ...mapFiles, ...(o.plot ? [o.plot] : []), ...(o.growthPlot ? [o.growthPlot] : [])];
   const growthData = growth && { method: growth.method, end: growth.end, notes: growth.notes, clusters: growth.clusters.map(({ eigenvalues: _, ...c }) => c) };
+  // what the scenario's checks found that bears on the analysis: the mesh against the wavelength, slivers
+  const warnings = [...r.warnings.filter((w) => /wavelength|sliver/.test(w))];
+  const quality = (r.summary as { meshQuality?: { slivers: number } }).meshQuality;
+  if (quality && quality.slivers > 0 && !warnings.some((w) => /sliver/.test(w))) warnings.push(`${quality.slivers} sliver triangle${quality.slivers > 1 ? 's' : ''} (an angle under ${SLIVER_ANGLE_DEGREES}°): their eigenvalues are less accurate; placode mesh names the worst`);
   if (o.json) {
-    out(JSON.stringify({ ...data, ...(growthData ? { growth: growthData } : {}), files }, null, 2) + '\n');
+    out(JSON.stringify({ ...data, warnings, ...(growthData ? { growth: growthData } : {}), files }, null, 2) + '\n');
     return;
   }
   const t = report.turing;
   out(`${r.name}: ${r.model} with ${Object.entries(report.parameters).map(([k, v]) => `${k}=${fmt(v)}`).join(', ')}; diffusion ${Object.entries(report.diffusion).map(([k, v]) => `${k}=${fmt(v)}`).join(', ')}\n`);
   for (const n of report.notes) out(`  note: ${n}\n`);
+  for (const w of warnings) out(`  warning: ${w}\n`);
   out(`homogeneous steady states:\n`);
   report.steadyStates.forEach((s, i) => {
     const eig = s.eigenvalues.map(([re, im]) => (im === 0 ? fmt(re) : `${fmt(re)}${im > 0 ? '+' : '−'}${fmt(Math.abs(im))}i`)).join(', ');

@@ -11,6 +11,10 @@ import { resolveGrowth } from './resolveGrowth.ts';
 import { Linearisation } from './linearisation.ts';
 import type { ReactionDiffusionSystem } from '../integrate/ReactionDiffusionSystem.ts';
 import { DEFAULT_SEED } from '../defaults.ts';
+import { meshQuality, qualityWarnings } from '../fem/meshQuality.ts';
+import { resolutionWarning } from '../analysis/meshResolution.ts';
+import { scenarioTuring } from '../analysis/stabilityReport.ts';
+import { edgeLengthStats } from '../mesh/edgeLengthStats.ts';
 import { MeshRepairError } from '../mesh/repairMesh.ts';
 
 export type { LoadedMesh, ResolvedScenario, ScenarioEnvironment, AnalysisPlan, GrowthPlan, OutputPlan } from './ResolvedScenario.ts';
@@ -51,6 +55,9 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   const restField = start.rest?.[kin.species.indexOf(analysis.species)];
   if (restField) analysis.floor = { ...analysis.floor, rest: restField };
   const growth = sc.growth ? resolveGrowth(ctx, sc.growth, mesh, fields, lin, env) : undefined;
+  // the mesh's shape quality, where it costs the run: slivers set the explicit scheme's step
+  const quality = meshQuality(mesh, 5, time.operators);
+  if (time.scheme === 'explicit') warnings.push(...qualityWarnings(quality));
 
   const name = sc.name ?? file.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, '');
   const model = kin.model?.name ?? 'custom';
@@ -66,8 +73,9 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     analysis,
     growth: growth ? { ...sc.growth, centre: growth.centre, description: growth.description, tolerance: growth.tolerance } : undefined,
     explicitLimit: time.explicitLimit,
+    meshQuality: { minAngle: quality.angles.min, slivers: quality.slivers, obtuseShare: quality.obtuseShare, explicitStepRatio: quality.explicitStepRatio },
   };
-  return {
+  const resolved: ResolvedScenario = {
     name,
     seed,
     mesh,
@@ -99,6 +107,11 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     warnings,
     summary,
   };
+  // the mesh against the pattern's wavelength (cheap: the Turing analysis needs no eigenpairs)
+  const turing = scenarioTuring(resolved);
+  const resolution = turing?.fastest ? resolutionWarning(edgeLengthStats(mesh).mean, turing.fastest.k2) : undefined;
+  if (resolution) warnings.push(resolution);
+  return resolved;
 }
 
 /** The sections that need no mesh: kinetics (formulas compiled), scheme, painting, diffusion names. */

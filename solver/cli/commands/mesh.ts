@@ -20,6 +20,15 @@ export const registerMesh: RegisterCommand = (program, ctx) => {
       const { meshStatistics } = await import('../../mesh/meshStatistics.ts');
       const r = await resolveMesh(spec, o);
       const stats = meshStatistics(r.mesh);
+      const { meshQuality, qualityWarnings } = await import('../../fem/meshQuality.ts');
+      const quality = stats.errors.length ? undefined : meshQuality(r.mesh);
+      if (quality) stats.warnings.push(...qualityWarnings(quality));
+      // the per-vertex data the mesh carries (a measured morphogen map, say), with its range
+      const data = Object.entries(r.vertexData ?? {}).map(([name, v]) => {
+        let min = Infinity, max = -Infinity;
+        for (const x of v) { min = Math.min(min, x); max = Math.max(max, x); }
+        return { name, min, max };
+      });
       const { scatteredEdgeFraction, LOCALITY_WINDOW } = await import('../../mesh/localityOrder.ts');
       const scattered = scatteredEdgeFraction(r.mesh);
       if (!o.reorder && stats.vertices >= SCATTERED_ORDER_VERTICES && scattered > SCATTERED_ORDER_FRACTION) {
@@ -32,13 +41,19 @@ export const registerMesh: RegisterCommand = (program, ctx) => {
         saveMeshFile(o.out, r.mesh, { encoding: o.ascii ? 'ascii' : 'binary', force: o.force, properties: r.vertexData, comments: [`placode ${VERSION}`] });
       }
       if (o.json) {
-        process.stdout.write(JSON.stringify(stats, null, 2) + '\n');
+        process.stdout.write(JSON.stringify({ ...stats, quality, vertexData: data }, null, 2) + '\n');
       } else {
         const e = stats.edgeLength;
         process.stdout.write(
           `${spec}: ${stats.vertices} vertices, ${stats.triangles} triangles\n` +
             `  area ${fmt(stats.area)}, ${genusText(stats)}, ${stats.boundaryLoops} boundary loop(s), ${stats.components} component(s), Euler characteristic ${stats.eulerCharacteristic}\n` +
-            `  edge length min ${fmt(e.min)} mean ${fmt(e.mean)} max ${fmt(e.max)}\n`,
+            `  edge length min ${fmt(e.min)} mean ${fmt(e.mean)} max ${fmt(e.max)}\n` +
+            (quality
+              ? `  angles min ${quality.angles.min.toFixed(2)}° (1st percentile ${quality.angles.p1.toFixed(1)}°, max ${quality.angles.max.toFixed(1)}°), mean smallest angle per triangle ${quality.meanMinimumAngle.toFixed(1)}°\n` +
+                `  radius ratio 2r/R min ${quality.radiusRatio.min.toFixed(3)} (1st percentile ${quality.radiusRatio.p1.toFixed(3)}, mean ${quality.radiusRatio.mean.toFixed(3)}); ${(100 * quality.obtuseShare).toFixed(1)} % obtuse, ${quality.slivers} sliver(s)\n` +
+                `  explicit step limit ${quality.explicitStepRatio >= 0.995 ? 'as' : `${(100 * quality.explicitStepRatio).toPrecision(3)} % of`} a well-shaped mesh's of this size\n`
+              : '') +
+            data.map((d) => `  vertex data ${d.name}: ${fmt(d.min)} … ${fmt(d.max)}\n`).join(''),
         );
         for (const n of r.notes) process.stdout.write(`  note: ${n}\n`);
         for (const w of stats.warnings) process.stdout.write(`  warning: ${w}\n`);

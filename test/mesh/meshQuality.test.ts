@@ -1,0 +1,110 @@
+import { describe, expect, it } from 'vitest';
+import { runCli as run } from '../fixtures/cli.ts';
+import { useTempFiles } from '../fixtures/tempFiles.ts';
+import { icosphere, icosahedron } from '../../meshes/shapes/icosphere.ts';
+import { makeMesh, type Mesh } from '../../solver/mesh/Mesh.ts';
+import { saveMeshFile } from '../../solver/io/meshFiles.ts';
+import { meshQuality } from '../../solver/fem/meshQuality.ts';
+import { laplaceBeltramiEigenpairs } from '../../solver/fem/laplaceBeltramiEigenpairs.ts';
+import { edgeLengthStats } from '../../solver/mesh/edgeLengthStats.ts';
+import { MIN_EDGES_PER_WAVELENGTH } from '../../solver/defaults.ts';
+
+const temp = useTempFiles('placode-quality-');
+
+/** An icosphere with a few triangles split by a point almost on one of their edges: slivers, as a scan's mesher leaves them. */
+function withSlivers(mesh: Mesh, count: number): Mesh {
+  const p = Array.from(mesh.positions), t = Array.from(mesh.triangles);
+  for (let k = 0; k < count; k++) {
+    const f = 37 * k + 5;
+    const [a, b, c] = [t[3 * f], t[3 * f + 1], t[3 * f + 2]];
+    // a point on edge ab, a thousandth of its length from a: triangles (a, v, c) and (v, a, o) become slivers
+    const m = [0, 1, 2].map((d) => p[3 * a + d] + 1e-3 * (p[3 * b + d] - p[3 * a + d]));
+    const v = p.length / 3;
+    p.push(...m);
+    t.splice(3 * f, 3, a, v, c);
+    t.push(v, b, c);
+    // the neighbour across ab keeps its edge: the new vertex sits on it (a T-junction would be a crack), so split it too
+    for (let g = 0; g < t.length / 3; g++) {
+      if (g === f) continue;
+      const tri = [t[3 * g], t[3 * g + 1], t[3 * g + 2]];
+      const i = tri.findIndex((x, j) => x === b && tri[(j + 1) % 3] === a);
+      if (i < 0) continue;
+      const o = tri[(i + 2) % 3];
+      t.splice(3 * g, 3, b, v, o);
+      t.push(v, a, o);
+      break;
+    }
+  }
+  return makeMesh(Float64Array.from(p), Uint32Array.from(t));
+}
+
+describe('mesh quality', () => {
+  it('the explicit step ratio is ideal/actual = (2√3·n/A)/(4/h²) = 1.2 on the regular icosahedron (closed form)', () => {
+    const { corners, faces } = icosahedron();
+    const mesh = makeMesh(Float64Array.from(corners.flat()), Uint32Array.from(faces.flat()));
+    const q = meshQuality(mesh);
+    // equilateral faces of edge h: K_ii/m_i = 4/h² at every vertex; n = 12, A = 5√3h²
+    expect(q.explicitStepRatio).toBeCloseTo(1.2, 10);
+    expect(q.angles.min).toBeCloseTo(60, 10);
+    expect(q.angles.max).toBeCloseTo(60, 10);
+    expect(q.radiusRatio.min).toBeCloseTo(1, 10);
+    expect(q.slivers).toBe(0);
+    expect(q.obtuseShare).toBe(0);
+  });
+
+  it('slivers are counted, the worst named with their vertices, and their cost to the explicit step stated; placode mesh and run --check warn', async () => {
+    const mesh = withSlivers(icosphere(8, 1), 4);
+    const q = meshQuality(mesh);
+    expect(q.slivers).toBeGreaterThanOrEqual(4);
+    expect(q.angles.min).toBeLessThan(0.1);
+    expect(q.explicitStepRatio).toBeLessThan(0.02);
+    const file = temp.path('slivers.ply');
+    saveMeshFile(file, mesh);
+    const m = await run('mesh', file, '--json');
+    expect(m.code, m.err).toBe(0);
+    const j = JSON.parse(m.out);
+    expect(j.quality.slivers).toBe(q.slivers);
+    const worst = j.quality.worst[0];
+    expect(j.warnings.join('\n')).toContain(`triangle ${worst.triangle} (vertices ${worst.vertices.join(', ')}`);
+    expect(j.warnings.join('\n')).toMatch(/use scheme: imex/);
+    const scenario = temp.write('slivers.yaml', `mesh: {file: ${file}}\nkinetics: {model: gray-scott}\ntime: {scheme: explicit, end: 10}\n`);
+    const check = await run('run', scenario, '--check');
+    expect(check.code, check.err).toBe(0);
+    expect(JSON.parse(check.out).warnings.join('\n')).toMatch(/sliver triangles .* the worst: triangle \d+/);
+    // the same mesh, well shaped: no warning
+    const good = temp.path('good.ply');
+    saveMeshFile(good, icosphere(8, 1));
+    expect(JSON.parse((await run('mesh', good, '--json')).out).warnings).toEqual([]);
+  });
+
+  it('the edges-per-wavelength threshold rests on the P1 eigenvalue error, second order in h (Dziuk 1988): about 2.4 %·(10/N)² on the unit sphere', () => {
+    // the refinement study behind MIN_EDGES_PER_WAVELENGTH, on two meshes: the degree-l cluster's mean
+    // eigenvalue against l(l+1), with N = (2π/√(l(l+1)))/h mean edges per wavelength
+    for (const f of [10, 16]) {
+      const mesh = icosphere(f, 1);
+      const h = edgeLengthStats(mesh).mean;
+      const eig = laplaceBeltramiEigenpairs(mesh, { count: 150, mass: 'lumped' });
+      for (let l = 3; (l + 1) ** 2 <= 150; l++) {
+        let s = 0;
+        for (let j = l * l; j < (l + 1) ** 2; j++) s += eig.values[j];
+        const error = 1 - s / (2 * l + 1) / (l * (l + 1));
+        const N = (2 * Math.PI) / Math.sqrt(l * (l + 1)) / h;
+        const fit = 0.024 * (10 / N) ** 2;
+        expect(error / fit).toBeGreaterThan(0.6);
+        expect(error / fit).toBeLessThan(1.6);
+        if (Math.abs(N - MIN_EDGES_PER_WAVELENGTH) < 1) expect(error).toBeLessThan(0.06);
+      }
+    }
+  });
+
+  it('run --check and stability warn when the fastest wavelength spans fewer edges than the threshold, and not on a fine enough mesh', async () => {
+    // Schnakenberg γ = 200 on the unit sphere: fastest k² ≈ 64 (γ·0.32), wavelength 2π/8 ≈ 0.79
+    const coarse = temp.write('coarse.yaml', 'mesh: {shape: sphere, vertices: 200}\nkinetics: {model: schnakenberg, parameters: {gamma: 200}}\ntime: {end: 1}\n');
+    const fine = temp.write('fine.yaml', 'mesh: {shape: sphere, vertices: 5000}\nkinetics: {model: schnakenberg, parameters: {gamma: 200}}\ntime: {end: 1}\n');
+    const c = JSON.parse((await run('run', coarse, '--check')).out);
+    expect(c.warnings.join('\n')).toMatch(/fastest-growing wavelength 2π\/√k² = 0\.7\d+ spans only [0-9.]+ mean edges/);
+    expect(JSON.parse((await run('run', fine, '--check')).out).warnings.join('\n')).not.toMatch(/wavelength/);
+    const s = await run('stability', coarse);
+    expect(s.out).toMatch(/warning: the fastest-growing wavelength/);
+  }, 60_000);
+});
