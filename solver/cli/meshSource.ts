@@ -4,6 +4,7 @@ import type { Mesh } from '../mesh/Mesh.ts';
 import { repairMesh as repairMeshPure, type MeshRepairs } from '../mesh/repairMesh.ts';
 import { validateMesh } from '../mesh/validateMesh.ts';
 import { UsageError } from '../UsageError.ts';
+import { scaleMesh } from '../scenario/scenarioMesh.ts';
 import { parseCount, parseParams } from './options.ts';
 
 export interface MeshSourceOptions {
@@ -15,6 +16,8 @@ export interface MeshSourceOptions {
   refine?: string;
   loop?: string;
   reorder?: boolean;
+  scale?: string;
+  units?: string;
 }
 
 export interface ResolvedMesh {
@@ -51,6 +54,11 @@ export async function resolveMesh(spec: string, o: MeshSourceOptions): Promise<R
     source = { kind: 'file', path: spec };
   } else {
     throw new UsageError(`"${spec}" is neither a built-in shape (${Object.keys(SHAPES).join(', ')}) nor an existing mesh file`);
+  }
+  if (o.scale !== undefined) {
+    const factor = Number(o.scale);
+    if (!(Number.isFinite(factor) && factor > 0)) throw new UsageError(`--scale must be a number > 0, got "${o.scale}"`);
+    if (factor !== 1) mesh = scaleMesh(mesh, factor);
   }
   let weld: number | undefined;
   if (o.weld !== undefined && o.weld !== false) {

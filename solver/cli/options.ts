@@ -36,7 +36,9 @@ export function addMeshOptions(cmd: Command): Command {
     .option('--drop-unreferenced', 'remove vertices no triangle uses')
     .option('--refine <n>', '1-to-4 midpoint refinements to apply')
     .option('--loop <n>', 'Loop subdivision steps to apply (smooths the surface)')
-    .option('--reorder', 'renumber the vertices so neighbours are close in memory (reverse Cuthill–McKee; faster stepping on a scattered mesh)');
+    .option('--reorder', 'renumber the vertices so neighbours are close in memory (reverse Cuthill–McKee; faster stepping on a scattered mesh)')
+    .option('--scale <factor>', 'multiply the coordinates by this as the mesh is read (0.001 turns µm into mm)')
+    .option('--units <unit>', 'the length unit of the (scaled) coordinates, shown with lengths and areas (µm, mm, …)');
 }
 
 export type ProgressChoice = 'auto' | 'bar' | 'lines' | 'none';

@@ -77,7 +77,7 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
   }
   if (o.plot) {
     if (!report.jacobian) throw new UsageError('--plot: no steady state to analyse, so no dispersion relation to draw');
-    writeFileAtomic(o.plot, dispersionPlot(r.name, r.model, report, eigenpairs, o), o.force);
+    writeFileAtomic(o.plot, dispersionPlot(r.name, r.model, r.units, report, eigenpairs, o), o.force);
   }
   let growth: BandCourse | null = null;
   if (r.growth && report.turing?.band && Number.isFinite(report.turing.band[1])) {
@@ -90,7 +90,7 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
   }
   if (o.growthPlot && growth) {
     const width = o.width ?? FIGURE_SIZE.width, height = o.height ?? Math.round(FIGURE_SIZE.width * 0.62), dpi = o.dpi ?? FIGURE_SIZE.dpi;
-    const svg = bandCourseFigureSvg(growth, { y: o.plotX, title: `${r.name}: the band through growth`, width, height, dpi });
+    const svg = bandCourseFigureSvg(growth, { y: o.plotX, units: r.units, title: `${r.name}: the band through growth`, width, height, dpi });
     writeFileAtomic(o.growthPlot, o.growthPlot.toLowerCase().endsWith('.png') ? svgToPng(svg, width, dpi) : svg, o.force);
   }
   const files = [...(o.paint ? [o.paint] : []), ...mapFiles, ...(o.plot ? [o.plot] : []), ...(o.growthPlot ? [o.growthPlot] : [])];
@@ -104,6 +104,7 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
     return;
   }
   const t = report.turing;
+  const unit = r.units ? ` ${r.units}` : '', perArea = r.units ? ` ${r.units}⁻²` : '';
   out(`${r.name}: ${r.model} with ${Object.entries(report.parameters).map(([k, v]) => `${k}=${fmt(v)}`).join(', ')}; diffusion ${Object.entries(report.diffusion).map(([k, v]) => `${k}=${fmt(v)}`).join(', ')}\n`);
   for (const n of report.notes) out(`  note: ${n}\n`);
   for (const w of warnings) out(`  warning: ${w}\n`);
@@ -123,11 +124,11 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
   if (t.unstableWithoutDiffusion) out(`  state ${report.state} is unstable without diffusion${t.oscillatory ? ' (oscillatory: a Hopf-type instability)' : ''}: no Turing pattern selection\n`);
   else if (!t.band) out(`  no Turing instability: every mode decays\n`);
   else {
-    out(`  unstable band ${fmt(t.band[0])} < k² < ${fmt(t.band[1])}; fastest k² = ${fmt(t.fastest!.k2)} (wavelength ${fmt((2 * Math.PI) / Math.sqrt(t.fastest!.k2))}), growth rate ${fmt(t.fastest!.rate)}\n`);
+    out(`  unstable band ${fmt(t.band[0])} < k² < ${fmt(t.band[1])}${perArea}; fastest k² = ${fmt(t.fastest!.k2)}${perArea} (wavelength ${fmt((2 * Math.PI) / Math.sqrt(t.fastest!.k2))}${unit}), growth rate ${fmt(t.fastest!.rate)}\n`);
   }
   if (report.surface) {
     const s = report.surface;
-    out(`surface: ${s.vertices} vertices, area ${fmt(s.area)}; ${s.modesComputed} Laplace–Beltrami modes (lumped mass) up to λ = ${fmt(s.largestEigenvalue)}\n`);
+    out(`surface: ${s.vertices} vertices, area ${fmt(s.area)}${r.units ? ` ${r.units}²` : ''}; ${s.modesComputed} Laplace–Beltrami modes (lumped mass) up to λ = ${fmt(s.largestEigenvalue)}\n`);
     if (report.modes.length) {
       out(`  modes in the band (index, eigenvalue, growth rate):\n`);
       for (const m of report.modes) out(`    ${String(m.index).padStart(5)}  ${fmt(m.eigenvalue).padEnd(12)} ${fmt(m.rate)}\n`);
@@ -150,7 +151,7 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
 }
 
 /** The dispersion figure of a report: the curve, the band, every computed surface eigenvalue cluster on it. */
-function dispersionPlot(name: string, model: string, report: ReturnType<typeof stabilityReport>, eigenpairs: Eigenpairs | null, o: StabilityOptions): Uint8Array | string {
+function dispersionPlot(name: string, model: string, units: string | undefined, report: ReturnType<typeof stabilityReport>, eigenpairs: Eigenpairs | null, o: StabilityOptions): Uint8Array | string {
   const J = report.jacobian!.flat();
   const D = Object.values(report.diffusion);
   const marks = (eigenpairs?.clusters ?? []).map((c) => ({ eigenvalue: c.mean, multiplicity: c.size, rate: growthRate(J, D, c.mean) }));
@@ -158,7 +159,7 @@ function dispersionPlot(name: string, model: string, report: ReturnType<typeof s
   const svg = dispersionFigureSvg({
     dispersion: report.dispersion, band: report.turing?.band ?? null, marks,
     predicted: report.predicted ? { eigenvalue: report.predicted.eigenvalue, multiplicity: report.predicted.multiplicity, rate: report.predicted.rate } : null,
-    x: o.plotX, title: `${name}: ${model}, steady state ${report.state}`, width, height, dpi,
+    x: o.plotX, units, title: `${name}: ${model}, steady state ${report.state}`, width, height, dpi,
   });
   return o.plot!.toLowerCase().endsWith('.png') ? svgToPng(svg, width, dpi) : svg;
 }

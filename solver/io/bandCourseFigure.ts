@@ -8,7 +8,7 @@ import type { BandCourse } from '../analysis/bandThroughGrowth.ts';
  * cluster as a line (blue while inside the band), its entry marked and
  * labelled with the time.
  */
-export function bandCourseFigureSvg(course: BandCourse, o: { y?: 'k2' | 'wavelength'; title?: string; width: number; height: number; dpi: number }): string {
+export function bandCourseFigureSvg(course: BandCourse, o: { y?: 'k2' | 'wavelength'; units?: string; title?: string; width: number; height: number; dpi: number }): string {
   const byWavelength = o.y === 'wavelength';
   const map = (k2: number) => (byWavelength ? (2 * Math.PI) / Math.sqrt(k2) : k2);
   const [a, b] = course.band;
@@ -18,7 +18,7 @@ export function bandCourseFigureSvg(course: BandCourse, o: { y?: 'k2' | 'wavelen
   const frame = plotFrame({
     width: o.width, height: o.height, dpi: o.dpi, title: o.title,
     x: { min: 0, max: course.end, label: 'time' },
-    y: { min: yMin, max: yMax, label: byWavelength ? 'wavelength 2π/k (length)' : 'k^{2} (length^{−2})' },
+    y: { min: yMin, max: yMax, label: byWavelength ? `wavelength 2π/k (${o.units ?? 'length'})` : `k^{2} (${o.units ?? 'length'}^{−2})` },
   });
   const { X, Y, box, pt } = frame;
   const T = FIGURE_TYPE;

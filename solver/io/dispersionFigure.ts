@@ -15,6 +15,8 @@ export interface DispersionFigureSpec {
   predicted: DispersionMark | null;
   /** the horizontal axis: k² (default) or the wavelength 2π/k */
   x?: 'k2' | 'wavelength';
+  /** the length unit of the mesh, for the axes (else "length") */
+  units?: string;
   title?: string;
   width: number;
   height: number;
@@ -47,7 +49,7 @@ export function dispersionFigureSvg(spec: DispersionFigureSpec): string {
   }
   const frame = plotFrame({
     width: spec.width, height: spec.height, dpi: spec.dpi, title: spec.title,
-    x: { min: xMin, max: xMax, label: byWavelength ? 'wavelength 2π/k (length)' : 'k^{2} (length^{−2})' },
+    x: { min: xMin, max: xMax, label: byWavelength ? `wavelength 2π/k (${spec.units ?? 'length'})` : `k^{2} (${spec.units ?? 'length'}^{−2})` },
     y: { min: yMin, max: yMax, label: 'growth rate Re σ (time^{−1})' },
   });
   const { X, Y, box, pt } = frame;

@@ -63,6 +63,8 @@ export interface ResolvedScenario {
   mesh: Mesh;
   meshSource: Record<string, unknown>;
   meshNotes: string[];
+  /** the length unit of the mesh coordinates (mesh.units), when stated */
+  units?: string;
   model: string;
   kineticsModel?: KineticsModel;
   species: string[];

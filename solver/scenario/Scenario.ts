@@ -91,6 +91,10 @@ export interface MeshSpec {
   loop?: number;
   /** renumber the vertices so that neighbours are close in memory (faster stepping on a scattered mesh file) */
   reorder?: boolean;
+  /** multiply the coordinates by this as the mesh is read (0.001 turns µm into mm); every length in the scenario is then in the scaled unit */
+  scale?: number;
+  /** the length unit of the (scaled) coordinates, shown with lengths, wavelengths, areas and k² (µm, mm, …) */
+  units?: string;
 }
 
 export interface KineticsSpec {
@@ -191,6 +195,8 @@ export const SCENARIO_SCHEMA = {
         refine: { type: 'integer', minimum: 0, maximum: 6 },
         loop: { type: 'integer', minimum: 0, maximum: 6 },
         reorder: { type: 'boolean' },
+        scale: { type: 'number', exclusiveMinimum: 0 },
+        units: { type: 'string', minLength: 1, maxLength: 16 },
       },
     },
     kinetics: {

@@ -15,6 +15,8 @@ import { meshQuality, qualityWarnings } from '../fem/meshQuality.ts';
 import { resolutionWarning } from '../analysis/meshResolution.ts';
 import { scenarioTuring } from '../analysis/stabilityReport.ts';
 import { edgeLengthStats } from '../mesh/edgeLengthStats.ts';
+import { unitsMismatch } from '../analysis/meshResolution.ts';
+import { meshArea } from '../mesh/triangleAreas.ts';
 import { MeshRepairError } from '../mesh/repairMesh.ts';
 
 export type { LoadedMesh, ResolvedScenario, ScenarioEnvironment, AnalysisPlan, GrowthPlan, OutputPlan } from './ResolvedScenario.ts';
@@ -81,6 +83,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     mesh,
     meshSource: loaded.source,
     meshNotes: loaded.notes,
+    units: sc.mesh.units,
     model,
     kineticsModel: kin.model,
     species: kin.species,
@@ -109,8 +112,10 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
   };
   // the mesh against the pattern's wavelength (cheap: the Turing analysis needs no eigenpairs)
   const turing = scenarioTuring(resolved);
-  const resolution = turing?.fastest ? resolutionWarning(edgeLengthStats(mesh).mean, turing.fastest.k2) : undefined;
-  if (resolution) warnings.push(resolution);
+  // (a wavelength out of all proportion to the surface is a units mistake, not a resolution to fix)
+  const mismatch = turing?.fastest ? unitsMismatch(meshArea(mesh), turing.fastest.k2, sc.mesh.units) : undefined;
+  const resolution = turing?.fastest && !mismatch ? resolutionWarning(edgeLengthStats(mesh).mean, turing.fastest.k2, sc.mesh.units) : undefined;
+  for (const w of [mismatch, resolution]) if (w) warnings.push(w);
   return resolved;
 }
 

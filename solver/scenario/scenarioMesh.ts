@@ -40,6 +40,7 @@ export function scenarioMesh(spec: MeshSpec, readFile: (file: string) => MeshFil
     notes.push(...read.notes);
     source = read.source;
   }
+  if (spec.scale !== undefined && spec.scale !== 1) mesh = scaleMesh(mesh, spec.scale);
   const weld = spec.weld === undefined || spec.weld === false ? undefined : spec.weld === true ? 0 : spec.weld;
   const repaired = repairMesh(mesh, vertexData, { weld, dropUnreferenced: spec.dropUnreferenced, fixOrientation: spec.fixOrientation, refine: spec.refine, loop: spec.loop, reorder: spec.reorder });
   const report = validateMesh(repaired.mesh);
@@ -51,6 +52,13 @@ export function scenarioMesh(spec: MeshSpec, readFile: (file: string) => MeshFil
   if (scattered > SCATTERED_ORDER_FRACTION) {
     notes.push(`the vertex order is scattered (${Math.round(100 * scattered)} % of edges join vertices more than ${LOCALITY_WINDOW} apart), which makes stepping up to 3× slower and threads gain little: add reorder: true to the mesh section (vertex numbers in the outputs then follow the new order), or renumber the file once with placode mesh ${spec.file ?? 'FILE'} --reorder -o NEW.ply`);
   }
-  for (const k of ['weld', 'fixOrientation', 'dropUnreferenced', 'refine', 'loop', 'reorder'] as const) if (spec[k] !== undefined) source[k] = spec[k];
+  for (const k of ['weld', 'fixOrientation', 'dropUnreferenced', 'refine', 'loop', 'reorder', 'scale', 'units'] as const) if (spec[k] !== undefined) source[k] = spec[k];
   return { mesh: repaired.mesh, vertexData: repaired.vertexData, source, notes };
+}
+
+/** The mesh with every coordinate multiplied by `scale` (a change of length unit). */
+export function scaleMesh(mesh: Mesh, scale: number): Mesh {
+  const positions = new Float64Array(mesh.positions.length);
+  for (let i = 0; i < positions.length; i++) positions[i] = mesh.positions[i] * scale;
+  return { positions, triangles: mesh.triangles };
 }

@@ -108,3 +108,24 @@ describe('mesh quality', () => {
     expect(s.out).toMatch(/warning: the fastest-growing wavelength/);
   }, 60_000);
 });
+
+describe('length units', () => {
+  it('mesh.scale multiplies the coordinates (eigenvalues go as 1/scale², exactly); mesh.units labels lengths, k² and areas; a mismatch of units is named', async () => {
+    const plain = JSON.parse((await run('modes', 'sphere', '--vertices', '300', '-n', '6', '--json')).out);
+    const scaled = JSON.parse((await run('modes', 'sphere', '--vertices', '300', '-n', '6', '--json', '--scale', '1000')).out);
+    for (let k = 1; k < 6; k++) expect(scaled.eigenvalues[k] * 1e6).toBeCloseTo(plain.eigenvalues[k], 6);
+    expect(scaled.area / plain.area).toBeCloseTo(1e6, 3);
+    // Schnakenberg γ = 200 on the unit sphere, but the mesh read in µm (×1000): the wavelength ~0.8 µm on a 3.5 mm sphere
+    const wrong = temp.write('um.yaml', 'mesh: {shape: sphere, vertices: 2000, scale: 1000, units: µm}\nkinetics: {model: schnakenberg, parameters: {gamma: 200}}\ntime: {end: 1}\n');
+    const w = JSON.parse((await run('run', wrong, '--check')).out);
+    expect(w.warnings.join('\n')).toMatch(/wavelength 2π\/√k² = 0\.7\d+ µm is \d+× smaller than the surface's size .* same length unit\? mesh\.scale converts/);
+    expect(w.warnings.join('\n')).not.toMatch(/spans only/); // not a resolution to fix
+    expect(w.mesh).toMatchObject({ scale: 1000, units: 'µm' });
+    // γ scaled by 1/1000² with the lengths: the same pattern in µm, no warning, and units in the printout
+    const right = temp.write('um-right.yaml', 'mesh: {shape: sphere, vertices: 2000, scale: 1000, units: µm}\nkinetics: {model: schnakenberg, parameters: {gamma: 0.0002}}\ntime: {end: 1}\n');
+    expect(JSON.parse((await run('run', right, '--check')).out).warnings).toEqual([]);
+    const s = await run('stability', right);
+    expect(s.out).toMatch(/unstable band 4\.0000e-5 < k² < 1\.0000e-4 µm⁻²; fastest k² = [0-9.e-]+ µm⁻² \(wavelength [0-9.]+ µm\)/);
+    expect(s.out).toMatch(/area [0-9.e+]+ µm²/);
+  }, 60_000);
+});

@@ -257,7 +257,8 @@ worker.onmessage = (event: MessageEvent<FromSimulation>) => {
       byId('mode-list').replaceChildren();
       byId('dispersion').replaceChildren();
       const s = m.stats;
-      byId('tissue-stats').textContent = `${s.vertices} vertices · ${s.triangles} triangles · area ${fmt(s.area)} · genus ${Number.isNaN(s.genus) ? "none (not an orientable manifold)" : s.genus} · ${s.boundaryLoops} boundary loop(s) · ${s.components} component(s) · mean edge ${fmt(s.meanEdge)}`;
+      const u = s.units ? ` ${s.units}` : '';
+      byId('tissue-stats').textContent = `${s.vertices} vertices · ${s.triangles} triangles · area ${fmt(s.area)}${s.units ? ` ${s.units}²` : ''} · genus ${Number.isNaN(s.genus) ? "none (not an orientable manifold)" : s.genus} · ${s.boundaryLoops} boundary loop(s) · ${s.components} component(s) · mean edge ${fmt(s.meanEdge)}${u}`;
       byId('clock-stats').textContent = `${m.scheme}${m.scheme === 'imex' ? ` (${m.solver})` : ''}, dt = ${fmt(m.dt)}, to t = ${fmt(m.end)}, a frame every ${fmt(m.every)}${m.growing ? ', growing' : ''}, ${m.threads.used} thread${m.threads.used > 1 ? 's' : ''}`;
       app.threads = m.threads.used;
       for (const w of [...m.notes, ...m.warnings]) say(w, 'warning');

@@ -26,7 +26,7 @@ export type FromAnalysis =
   | { type: 'error'; message: string };
 
 /** What the page shows of a surface: `placode mesh`'s statistics and the mean edge length. */
-export type SurfaceStats = Pick<MeshStatistics, 'vertices' | 'triangles' | 'area' | 'genus' | 'boundaryLoops' | 'components'> & { meanEdge: number };
+export type SurfaceStats = Pick<MeshStatistics, 'vertices' | 'triangles' | 'area' | 'genus' | 'boundaryLoops' | 'components'> & { meanEdge: number; units?: string };
 
 export interface StabilityView {
   species: string[];

@@ -156,7 +156,7 @@ async function load(text: string, files: Record<string, MeshFileContents>) {
   post({
     type: 'loaded', positions, triangles, species: next.species, state, dt: next.dt, end: next.end, every: next.output.everySteps * next.dt,
     scheme: next.scheme, solver: next.solver, growing: next.growth !== undefined, threads: { used: engine!.threads, note: chosen.note }, warnings: next.warnings, notes: next.meshNotes,
-    stats: { vertices: stats.vertices, triangles: stats.triangles, area: stats.area, genus: stats.genus, boundaryLoops: stats.boundaryLoops, components: stats.components, meanEdge: stats.edgeLength.mean },
+    stats: { vertices: stats.vertices, triangles: stats.triangles, area: stats.area, genus: stats.genus, boundaryLoops: stats.boundaryLoops, components: stats.components, meanEdge: stats.edgeLength.mean, units: next.units },
     rest, colour: next.output.colour, colormap: next.output.colormap, range: next.output.range,
   }, [state.buffer, positions.buffer, triangles.buffer]);
 }

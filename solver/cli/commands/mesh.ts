@@ -16,6 +16,7 @@ export const registerMesh: RegisterCommand = (program, ctx) => {
     .option('--force', 'overwrite an existing output file')
     .option('--json', 'print the statistics as JSON')
     .action(async (spec: string, o: MeshSourceOptions & { out?: string; ascii?: boolean; force?: boolean; json?: boolean }) => {
+      // (a scan's unit goes into the file written, as a header comment, and the scale is applied to it)
       const { resolveMesh } = await import('../meshSource.ts');
       const { meshStatistics } = await import('../../mesh/meshStatistics.ts');
       const r = await resolveMesh(spec, o);
@@ -38,16 +39,17 @@ export const registerMesh: RegisterCommand = (program, ctx) => {
         if (stats.errors.length > 0) throw new UsageError(`not writing ${o.out}: the mesh has errors:\n  - ${stats.errors.join('\n  - ')}`);
         const { saveMeshFile } = await import('../../io/meshFiles.ts');
         const { VERSION } = await import('../../version.ts');
-        saveMeshFile(o.out, r.mesh, { encoding: o.ascii ? 'ascii' : 'binary', force: o.force, properties: r.vertexData, comments: [`placode ${VERSION}`] });
+        saveMeshFile(o.out, r.mesh, { encoding: o.ascii ? 'ascii' : 'binary', force: o.force, properties: r.vertexData, comments: [`placode ${VERSION}`, ...(o.units ? [`units ${o.units}`] : [])] });
       }
       if (o.json) {
-        process.stdout.write(JSON.stringify({ ...stats, quality, vertexData: data }, null, 2) + '\n');
+        process.stdout.write(JSON.stringify({ ...stats, ...(o.units ? { units: o.units } : {}), quality, vertexData: data }, null, 2) + '\n');
       } else {
         const e = stats.edgeLength;
+        const u = o.units ? ` ${o.units}` : '';
         process.stdout.write(
           `${spec}: ${stats.vertices} vertices, ${stats.triangles} triangles\n` +
-            `  area ${fmt(stats.area)}, ${genusText(stats)}, ${stats.boundaryLoops} boundary loop(s), ${stats.components} component(s), Euler characteristic ${stats.eulerCharacteristic}\n` +
-            `  edge length min ${fmt(e.min)} mean ${fmt(e.mean)} max ${fmt(e.max)}\n` +
+            `  area ${fmt(stats.area)}${o.units ? ` ${o.units}²` : ''}, ${genusText(stats)}, ${stats.boundaryLoops} boundary loop(s), ${stats.components} component(s), Euler characteristic ${stats.eulerCharacteristic}\n` +
+            `  edge length min ${fmt(e.min)} mean ${fmt(e.mean)} max ${fmt(e.max)}${u}\n` +
             (quality
               ? `  angles min ${quality.angles.min.toFixed(2)}° (1st percentile ${quality.angles.p1.toFixed(1)}°, max ${quality.angles.max.toFixed(1)}°), mean smallest angle per triangle ${quality.meanMinimumAngle.toFixed(1)}°\n` +
                 `  radius ratio 2r/R min ${quality.radiusRatio.min.toFixed(3)} (1st percentile ${quality.radiusRatio.p1.toFixed(3)}, mean ${quality.radiusRatio.mean.toFixed(3)}); ${(100 * quality.obtuseShare).toFixed(1)} % obtuse, ${quality.slivers} sliver(s)\n` +
