@@ -6,6 +6,7 @@ import { laplaceBeltramiEigenpairs } from '../fem/laplaceBeltramiEigenpairs.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
 import { classifyState, numericalSteadyStates, type SteadyState } from './steadyStates.ts';
 import { growthRate, turingAnalysis, type TuringAnalysis } from './dispersion.ts';
+import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
 import { surfaceModeRates, type PredictedPattern, type SurfaceModeRate } from './surfaceModeRates.ts';
 
 export interface StabilityReport {
@@ -29,6 +30,8 @@ export interface StabilityReport {
 /** What the stability analysis needs of a scenario (a resolved scenario is one). */
 export interface StabilityProblem {
   readonly mesh: Mesh;
+  /** a stiffness and lumped mass to use instead of the mesh's cotangent ones (an intrinsic Delaunay Laplacian) */
+  readonly laplacianOperators?: { stiffness: CsrMatrix; mass: Float64Array };
   readonly species: readonly string[];
   readonly kinetics: CompiledKinetics;
   /** parameter and diffusion values, constants or per-vertex fields, in the kinetics' order */
@@ -147,7 +150,7 @@ export function stabilityReport(r: StabilityProblem, options: { maxModes?: numbe
   const maxModes = options.maxModes ?? 200;
   const wanted = modesToCoverBand(area, turing.band) ?? 20;
   const count = Math.min(maxModes, wanted, r.mesh.positions.length / 3 - 1);
-  const eig = options.eigenpairs ?? laplaceBeltramiEigenpairs(r.mesh, { count, mass: 'lumped' });
+  const eig = options.eigenpairs ?? laplaceBeltramiEigenpairs(r.mesh, { count, mass: 'lumped', operators: r.laplacianOperators });
   report.eigenpairs = eig;
   const largest = eig.values[eig.values.length - 1];
   const coversBand = !turing.band || largest >= turing.band[1];

@@ -24,6 +24,8 @@ export interface EigenpairOptions {
   /** eigenvalues closer than this relative gap are reported as one cluster (default 0.01) */
   clusterTolerance?: number;
   onProgress?: (converged: number, wanted: number) => void;
+  /** a stiffness and lumped mass to use instead of the mesh's cotangent ones (an intrinsic Delaunay Laplacian); implies mass 'lumped' */
+  operators?: { stiffness: CsrMatrix; mass: Float64Array };
 }
 
 export interface EigenCluster {
@@ -62,10 +64,10 @@ export function laplaceBeltramiEigenpairs(mesh: Mesh, options: EigenpairOptions)
   const count = options.count;
   if (!Number.isInteger(count) || count < 1) throw new Error(`laplaceBeltramiEigenpairs: count must be a positive whole number, got ${count}`);
   if (count > n) throw new Error(`laplaceBeltramiEigenpairs: asked for ${count} eigenpairs but the mesh has only ${n} vertices`);
-  const K = cotanStiffness(mesh);
-  const massKind = options.mass ?? 'consistent';
+  const K = options.operators?.stiffness ?? cotanStiffness(mesh);
+  const massKind = options.operators ? 'lumped' : options.mass ?? 'consistent';
   const Mc = massKind === 'consistent' ? consistentMass(mesh) : null;
-  const Ml = massKind === 'lumped' ? lumpedMass(mesh) : null;
+  const Ml = massKind === 'lumped' ? options.operators?.mass ?? lumpedMass(mesh) : null;
   const block = options.block ?? 6;
   const method = options.method ?? 'auto';
   const useDense = method === 'dense' || (method === 'auto' && (n <= DENSE_EIGEN_MAX_VERTICES || count + 5 * block > n / 2));

@@ -104,7 +104,8 @@ export class PatternTracker {
     const cover = modesToCoverBand(area, this.band) ?? 0;
     const cap = Math.max(MAX_TRACKED_MODES, r.analysis.modes);
     const count = Math.min(Math.max(r.analysis.modes, cover), cap, sim.vertexCount - 1);
-    this.eig = laplaceBeltramiEigenpairs(surface, { count, mass: 'lumped' });
+    // (a fixed surface with an intrinsic Delaunay Laplacian keeps its operators; growing surfaces are cotangent)
+    this.eig = laplaceBeltramiEigenpairs(surface, { count, mass: 'lumped', operators: this.growing ? undefined : r.laplacianOperators });
     const upTo = this.eig.values[this.eig.values.length - 1];
     this.analysis.modesUpTo = upTo;
     if (this.band && upTo < this.band[1] && !this.warnedShort) {

@@ -79,6 +79,10 @@ export interface ResolvedScenario {
    * growing stepper copies them before it moves the surface.
    */
   operators: { stiffness: CsrMatrix; mass: Float64Array };
+  /** which Laplacian the operators are; with intrinsic-delaunay every eigen-solve on the start surface uses them */
+  laplacian: 'cotangent' | 'intrinsic-delaunay';
+  /** the operators eigen-solves must use instead of the mesh's cotangent ones (set for intrinsic-delaunay) */
+  laplacianOperators?: { stiffness: CsrMatrix; mass: Float64Array };
   initial: Float64Array;
   /** index of the homogeneous steady state the scenario starts from and analyses */
   steadyStateIndex: number;

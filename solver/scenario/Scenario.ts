@@ -20,6 +20,7 @@ export interface Scenario {
   output?: OutputSpec;
   analysis?: AnalysisSpec;
   growth?: GrowthSpec;
+  fem?: FemSpec;
   /** values to vary in a parameter sweep (`placode sweep plan`); `placode run` runs the scenario as written */
   sweep?: SweepSpec;
 }
@@ -58,6 +59,14 @@ export interface GrowthSpec {
    * refinement, or has become longer than the fastest-growing wavelength over `perWavelength`
    */
   refine?: { edgeGrowth?: number; perWavelength?: number; maxVertices?: number };
+}
+
+export interface FemSpec {
+  /**
+   * the discrete Laplace–Beltrami operator: the cotangent one on the mesh's triangles (default), or the
+   * cotangent one on its intrinsic Delaunay triangulation (nonnegative weights on poor triangles, same vertices)
+   */
+  laplacian?: 'cotangent' | 'intrinsic-delaunay';
 }
 
 export interface AnalysisSpec {
@@ -289,6 +298,11 @@ export const SCENARIO_SCHEMA = {
           properties: { edgeGrowth: { type: 'number', exclusiveMinimum: 1 }, perWavelength: { type: 'number', exclusiveMinimum: 0 }, maxVertices: { type: 'integer', minimum: 100 } },
         },
       },
+    },
+    fem: {
+      type: 'object',
+      additionalProperties: false,
+      properties: { laplacian: { enum: ['cotangent', 'intrinsic-delaunay'] } },
     },
     analysis: {
       type: 'object',

@@ -75,6 +75,7 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     analysis,
     growth: growth ? { ...sc.growth, centre: growth.centre, description: growth.description, tolerance: growth.tolerance } : undefined,
     explicitLimit: time.explicitLimit,
+    fem: { laplacian: time.laplacian, ...(time.flips !== undefined ? { flips: time.flips } : {}) },
     meshQuality: { minAngle: quality.angles.min, slivers: quality.slivers, obtuseShare: quality.obtuseShare, explicitStepRatio: quality.explicitStepRatio },
   };
   const resolved: ResolvedScenario = {
@@ -93,6 +94,8 @@ export function resolveScenario(source: ScenarioSource, file: string, env: Scena
     kinetics,
     system,
     operators: time.operators,
+    laplacian: time.laplacian,
+    laplacianOperators: time.laplacian === 'intrinsic-delaunay' ? time.operators : undefined,
     initial: start.initial,
     steadyStateIndex: start.steadyIndex,
     scheme: time.scheme,

@@ -7,6 +7,7 @@ import { systemExplicitLimit, type ExplicitStepLimit } from '../integrate/explic
 import { cotanStiffness } from '../fem/cotanStiffness.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
 import { smallMatrixEigenvalues } from '../analysis/smallMatrixEigenvalues.ts';
+import { intrinsicDelaunayOperators } from '../fem/intrinsicDelaunay.ts';
 import { AUTO_CHOLESKY_STIFFNESS, AUTO_CHOLESKY_VERTICES, CG_TOLERANCE, EXPLICIT_STEP_FRACTION, MAX_RUN_STEPS, OUTPUTS_PER_RUN, REACTION_STEP_FRACTION } from '../defaults.ts';
 
 export interface TimePlan {
@@ -21,6 +22,9 @@ export interface TimePlan {
   explicitLimit?: ExplicitStepLimit;
   /** forward-Euler limit of the reactions at the steady state (when known) */
   reactionLimit?: number;
+  /** the Laplacian behind the operators, and (intrinsic Delaunay) how many edges were flipped */
+  laplacian: 'cotangent' | 'intrinsic-delaunay';
+  flips?: number;
   /** K and lumped M of the start mesh (the step limits are computed from them; the stepper reuses them) */
   operators: { stiffness: CsrMatrix; mass: Float64Array };
 }
@@ -49,8 +53,16 @@ export function resolveTime(ctx: ResolveContext, kin: KineticsPlan, system: Reac
   const n = mesh.positions.length / 3;
   const scheme = sc.time.scheme ?? 'imex';
   const requested = sc.time.solver ?? 'auto';
-  const stiffness = cotanStiffness(mesh);
-  const mass = lumpedMass(mesh);
+  // the Laplacian: the mesh's cotangent one, or that of its intrinsic Delaunay triangulation (fixed surfaces, constant D)
+  const laplacian = sc.fem?.laplacian ?? 'cotangent';
+  if (laplacian === 'intrinsic-delaunay') {
+    if (sc.growth) problems.add(['fem', 'laplacian'], 'intrinsic-delaunay is for fixed surfaces: a growing surface reassembles the cotangent operators at every move; remove growth or use laplacian: cotangent');
+    if (system.diffusion.some((d) => typeof d !== 'number')) problems.add(['fem', 'laplacian'], 'intrinsic-delaunay takes constant diffusion coefficients; a diffusion field needs laplacian: cotangent');
+    problems.fail(ctx.file);
+  }
+  const idt = laplacian === 'intrinsic-delaunay' ? intrinsicDelaunayOperators(mesh) : undefined;
+  const stiffness = idt ? idt.stiffness : cotanStiffness(mesh);
+  const mass = idt ? idt.mass : lumpedMass(mesh);
   const end = sc.time.end;
   let dt = sc.time.step;
   let explicitLimit: ExplicitStepLimit | undefined;
@@ -104,7 +116,7 @@ export function resolveTime(ctx: ResolveContext, kin: KineticsPlan, system: Reac
     problems.fail(ctx.file);
   }
   if (Math.abs(steps * step - end) > 1e-9 * end) warnings.push(`time.end ${end} is not a whole number of steps of ${step}; the run ends at ${steps * step}`);
-  return { scheme, dt: step, end, steps, solver, solverReason, tolerance: sc.time.tolerance ?? CG_TOLERANCE, explicitLimit, reactionLimit: reactionLimit?.limit, operators: { stiffness, mass } };
+  return { scheme, dt: step, end, steps, solver, solverReason, tolerance: sc.time.tolerance ?? CG_TOLERANCE, explicitLimit, reactionLimit: reactionLimit?.limit, operators: { stiffness, mass }, laplacian, flips: idt?.flips };
 }
 
 /** A step for a message: three figures, in exponent form when small. */

@@ -6,7 +6,7 @@ import { addMeshOptions, parseCount, formatNumber as fmt } from '../options.ts';
 import { UsageError } from '../../UsageError.ts';
 import { DEFAULT_MODE_COUNT, EIGEN_CLUSTER_TOLERANCE } from '../../defaults.ts';
 
-type ModesOptions = MeshSourceOptions & { count: string; mass: 'consistent' | 'lumped'; paint?: string; outDir: string; clusterTol: string; force?: boolean; json?: boolean; quiet?: boolean };
+type ModesOptions = MeshSourceOptions & { count: string; mass: 'consistent' | 'lumped'; laplacian: 'cotangent' | 'intrinsic-delaunay'; paint?: string; outDir: string; clusterTol: string; force?: boolean; json?: boolean; quiet?: boolean };
 
 export const registerModes: RegisterCommand = (program) => {
   addMeshOptions(
@@ -17,6 +17,7 @@ export const registerModes: RegisterCommand = (program) => {
   )
     .option('-n, --count <n>', 'number of eigenpairs', String(DEFAULT_MODE_COUNT))
     .addOption(new Option('--mass <kind>', 'mass matrix').choices(['consistent', 'lumped']).default('consistent'))
+    .addOption(new Option('--laplacian <kind>', 'cotangent on the mesh, or on its intrinsic Delaunay triangulation (nonnegative weights on poor triangles; lumped mass)').choices(['cotangent', 'intrinsic-delaunay']).default('cotangent'))
     .option('--paint <indices>', 'comma-separated mode indices (0 = constant mode) to write as painted PLY files')
     .option('--out-dir <dir>', 'directory for painted modes', 'modes')
     .option('--cluster-tol <rel>', 'relative gap under which eigenvalues count as one multiple eigenvalue', String(EIGEN_CLUSTER_TOLERANCE))
@@ -35,11 +36,18 @@ export const registerModes: RegisterCommand = (program) => {
       const r = await resolveMesh(spec, o);
       for (const w of requireFemReady(r.mesh, spec)) note(o.quiet, `warning: ${w}`);
       const n = r.mesh.positions.length / 3;
-      note(o.quiet, `computing ${count} eigenpairs on ${n} vertices (${o.mass} mass)…`);
+      note(o.quiet, `computing ${count} eigenpairs on ${n} vertices (${o.laplacian === 'intrinsic-delaunay' ? 'intrinsic Delaunay Laplacian, lumped' : o.mass} mass)…`);
       const t0 = performance.now();
       let last = -1;
+      let operators;
+      if (o.laplacian === 'intrinsic-delaunay') {
+        const { intrinsicDelaunayOperators } = await import('../../fem/intrinsicDelaunay.ts');
+        const idt = intrinsicDelaunayOperators(r.mesh);
+        operators = { stiffness: idt.stiffness, mass: idt.mass };
+        note(o.quiet, `intrinsic Delaunay triangulation: ${idt.flips} edge flip(s); lumped mass`);
+      }
       const eig = laplaceBeltramiEigenpairs(r.mesh, {
-        count, mass: o.mass, clusterTolerance,
+        count, mass: o.mass, clusterTolerance, operators,
         onProgress: (done, wanted) => {
           if (done !== last) { last = done; note(o.quiet, `  ${done}/${wanted} converged`); }
         },
@@ -62,10 +70,10 @@ export const registerModes: RegisterCommand = (program) => {
         process.stdout.write(JSON.stringify({
           eigenvalues: Array.from(eig.values), area, vertices: n,
           multiplicities: eig.clusters.map((c) => ({ eigenvalue: c.mean, multiplicity: c.size, first: c.first })),
-          mass: o.mass, method: eig.method, seconds, files: written,
+          mass: operators ? 'lumped' : o.mass, laplacian: o.laplacian, method: eig.method, seconds, files: written,
         }, null, 2) + '\n');
       } else {
-        process.stdout.write(`${spec}: ${n} vertices, area ${fmt(area)}, ${o.mass} mass, ${eig.method} solver, ${seconds.toFixed(2)} s\n`);
+        process.stdout.write(`${spec}: ${n} vertices, area ${fmt(area)}, ${o.laplacian === 'intrinsic-delaunay' ? 'intrinsic Delaunay Laplacian, lumped' : o.mass} mass, ${eig.method} solver, ${seconds.toFixed(2)} s\n`);
         process.stdout.write('  index  eigenvalue      multiplicity\n');
         for (const c of eig.clusters) {
           process.stdout.write(`  ${String(c.first).padStart(5)}  ${fmt(c.mean).padEnd(14)}  ${c.size}\n`);
