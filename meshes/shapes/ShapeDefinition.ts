@@ -19,6 +19,8 @@ export interface ShapeDefinition {
   description: string;
   /** closed surface or open (with a natural no-flux boundary) */
   closed: boolean;
+  /** its triangles are deliberately poor, as a scan's are (every other shape aims at near-equilateral ones) */
+  scanLike?: boolean;
   parameters: Record<string, ShapeParameter>;
   build(params: Record<string, number>, vertices: number): Mesh;
   /** extra consistency checks between parameters; return a message or null */

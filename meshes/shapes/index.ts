@@ -9,12 +9,13 @@ import { dome } from './dome.ts';
 import { patch } from './patch.ts';
 import { limbBud } from './limbBud.ts';
 import { spiralShell } from './spiralShell.ts';
+import { scanBud } from './scanBud.ts';
 
 export type { ShapeDefinition, ShapeParameter } from './ShapeDefinition.ts';
 
 /** Every built-in shape, by name. */
 export const SHAPES: Readonly<Record<string, ShapeDefinition>> = Object.fromEntries(
-  [sphere, ellipsoid, torus, capsule, dome, patch, limbBud, spiralShell].map((s) => [s.name, s]),
+  [sphere, ellipsoid, torus, capsule, dome, patch, limbBud, spiralShell, scanBud].map((s) => [s.name, s]),
 );
 
 /** Vertex count a shape aims for when none is asked for, and the largest target accepted (memory guard, ~0.5 GB of operators). */

@@ -129,3 +129,24 @@ describe('length units', () => {
     expect(s.out).toMatch(/area [0-9.e+]+ µm²/);
   }, 60_000);
 });
+
+describe('a scan-like mesh (the scan-bud shape: marching tetrahedra on a smoothed voxel mask)', () => {
+  it('is closed, welded and outward, but sliver-rich: the warnings name the worst triangles; its intrinsic Delaunay weights are all nonnegative', async () => {
+    const m = await run('mesh', 'scan-bud', '--vertices', '6000', '--json');
+    expect(m.code, m.err).toBe(0);
+    const j = JSON.parse(m.out);
+    expect(j.errors).toEqual([]);
+    expect([j.genus, j.boundaryLoops, j.components]).toEqual([0, 0, 1]);
+    expect(j.quality.slivers).toBeGreaterThan(50);
+    expect(j.quality.explicitStepRatio).toBeLessThan(0.02);
+    const worst = j.quality.worst[0];
+    expect(j.warnings.join('\n')).toContain(`the worst: triangle ${worst.triangle} (vertices ${worst.vertices.join(', ')}`);
+    const { buildShape } = await import('../../meshes/shapes/index.ts');
+    const { intrinsicDelaunayOperators } = await import('../../solver/fem/intrinsicDelaunay.ts');
+    const { cotanStiffness } = await import('../../solver/fem/cotanStiffness.ts');
+    const mesh = buildShape({ shape: 'scan-bud', vertices: 6000 }).mesh;
+    const positive = (K: ReturnType<typeof cotanStiffness>) => { let c = 0; for (let i = 0; i < K.rows; i++) for (let q = K.rowOffsets[i]; q < K.rowOffsets[i + 1]; q++) if (K.columns[q] !== i && K.values[q] > 1e-12) c++; return c; };
+    expect(positive(cotanStiffness(mesh))).toBeGreaterThan(100);
+    expect(positive(intrinsicDelaunayOperators(mesh).stiffness)).toBe(0); // closed: every edge interior
+  }, 60_000);
+});

@@ -46,7 +46,7 @@ describe('shape library', () => {
       expect(topo.genus).toBe(name === 'torus' ? 1 : 0);
       if (SHAPES[name].closed) expect(signedVolume(mesh)).toBeGreaterThan(0);
       const e = edgeLengthStats(mesh);
-      expect(e.max / e.min).toBeLessThan(8);
+      if (!SHAPES[name].scanLike) expect(e.max / e.min).toBeLessThan(8); // (a scan-like shape is irregular on purpose)
       if (exactArea[name]) {
         const A = exactArea[name](params);
         const rel = Math.abs(meshArea(mesh) - A) / A;
