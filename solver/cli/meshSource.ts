@@ -18,6 +18,8 @@ export interface MeshSourceOptions {
   reorder?: boolean;
   scale?: string;
   units?: string;
+  remesh?: string | boolean;
+  edge?: string;
 }
 
 export interface ResolvedMesh {
@@ -72,6 +74,7 @@ export async function resolveMesh(spec: string, o: MeshSourceOptions): Promise<R
     refine: parseCount(o.refine, '--refine') ?? 0,
     loop: parseCount(o.loop, '--loop') ?? 0,
     reorder: o.reorder,
+    remesh: remeshOption(o),
   });
   mesh = repaired.mesh;
   vertexData = repaired.vertexData;
@@ -95,4 +98,18 @@ export function requireFemReady(mesh: Mesh, name: string): string[] {
     throw new UsageError(`${name} cannot be used for surface finite elements:\n  - ${report.errors.map((e) => e.message).join('\n  - ')}`);
   }
   return report.warnings.map((w) => w.message);
+}
+
+/** --remesh [N] and --edge h as the repairs' remesh request (undefined without --remesh). */
+function remeshOption(o: MeshSourceOptions): { edge?: number; vertices?: number } | undefined {
+  if (o.edge !== undefined && !o.remesh) throw new UsageError('--edge sets the target edge length of --remesh: add --remesh');
+  if (!o.remesh) return undefined;
+  const vertices = o.remesh === true ? undefined : parseCount(o.remesh, '--remesh', 4);
+  let edge: number | undefined;
+  if (o.edge !== undefined) {
+    edge = Number(o.edge);
+    if (!(Number.isFinite(edge) && edge > 0)) throw new UsageError(`--edge must be a length > 0, got "${o.edge}"`);
+    if (vertices !== undefined) throw new UsageError('give --remesh N (a vertex count) or --edge h (a length), not both');
+  }
+  return { edge, vertices };
 }

@@ -37,6 +37,8 @@ export function addMeshOptions(cmd: Command): Command {
     .option('--refine <n>', '1-to-4 midpoint refinements to apply')
     .option('--loop <n>', 'Loop subdivision steps to apply (smooths the surface)')
     .option('--reorder', 'renumber the vertices so neighbours are close in memory (reverse Cuthill–McKee; faster stepping on a scattered mesh)')
+    .option('--remesh [vertices]', 'isotropic remeshing (Botsch–Kobbelt), to about this many vertices (default: the mean edge kept; --edge sets a length)')
+    .option('--edge <length>', 'with --remesh: the target edge length')
     .option('--scale <factor>', 'multiply the coordinates by this as the mesh is read (0.001 turns µm into mm)')
     .option('--units <unit>', 'the length unit of the (scaled) coordinates, shown with lengths and areas (µm, mm, …)');
 }

@@ -8,6 +8,7 @@ import { prolongField } from './Refinement.ts';
 import { validateMesh } from './validateMesh.ts';
 import { meshTopology } from './meshTopology.ts';
 import { MAX_SHAPE_VERTICES } from '../defaults.ts';
+import { isotropicRemesh } from './isotropicRemesh.ts';
 import { LOCALITY_WINDOW, localityOrder, renumberVertices, scatteredEdgeFraction } from './localityOrder.ts';
 
 const percent = (x: number) => `${(100 * x).toFixed(x < 0.1 ? 1 : 0)} %`;
@@ -19,6 +20,8 @@ export interface MeshRepairs {
   fixOrientation?: boolean;
   refine?: number;
   loop?: number;
+  /** isotropic remeshing (after the repairs, before refinement): to an edge length or a vertex count (neither: the mean edge) */
+  remesh?: { edge?: number; vertices?: number };
   /** renumber the vertices in a locality order (last, after any refinement) */
   reorder?: boolean;
 }
@@ -33,7 +36,7 @@ export class MeshRepairError extends Error {
 
 /**
  * Apply repairs and refinements in a fixed order (weld, drop unreferenced,
- * orient, midpoint refinement, Loop subdivision, renumbering), carrying
+ * orient, remesh, midpoint refinement, Loop subdivision, renumbering), carrying
  * per-vertex data along. Errors say what to repair first.
  */
 export function repairMesh(input: Mesh, data: Record<string, Float64Array>, o: MeshRepairs): { mesh: Mesh; vertexData: Record<string, Float64Array>; notes: string[] } {
@@ -67,6 +70,18 @@ export function repairMesh(input: Mesh, data: Record<string, Float64Array>, o: M
     const r = orientTriangles(mesh);
     mesh = r.mesh;
     notes.push(r.orientable ? `reoriented ${r.flipped} triangles` : 'the surface is not orientable; orientation left partly inconsistent');
+  }
+  if (o.remesh) {
+    const pre = validateMesh(mesh);
+    if (pre.errors.length > 0) throw new MeshRepairError('remesh', `cannot remesh a mesh with errors: ${pre.errors[0].message}; repair it first (weld, drop unreferenced vertices)`);
+    if (o.remesh.vertices !== undefined && o.remesh.vertices > MAX_SHAPE_VERTICES) throw new MeshRepairError('remesh', `remeshing to ${o.remesh.vertices} vertices is more than the ${MAX_SHAPE_VERTICES} a mesh may have`);
+    const before = mesh.positions.length / 3;
+    const r = isotropicRemesh(mesh, { ...o.remesh, vertexData });
+    const after = validateMesh(r.mesh);
+    if (after.errors.length > 0) throw new MeshRepairError('remesh', `remeshing left a mesh the finite elements cannot use (${after.errors[0].message}); try another edge length, or clean the input where it was made`);
+    mesh = r.mesh;
+    vertexData = r.vertexData;
+    notes.push(`remeshed isotropically (Botsch–Kobbelt) to edge ${r.edge.toPrecision(3)}: ${before} → ${mesh.positions.length / 3} vertices${Object.keys(vertexData).length ? `; per-vertex data (${Object.keys(vertexData).join(', ')}) interpolated at the new vertices` : ''}`);
   }
   const refine = o.refine ?? 0;
   const loop = o.loop ?? 0;

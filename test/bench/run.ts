@@ -72,4 +72,22 @@ if (process.env.BENCH_SHAPES !== '0') {
   }
 }
 
+if (process.env.BENCH_REMESH !== '0') {
+  // isotropic remeshing of the scan-like bud (marching tetrahedra: slivers, terraces), coarsening 10×
+  const { isotropicRemesh } = await import('../../solver/mesh/isotropicRemesh.ts');
+  const { meshQuality } = await import('../../solver/fem/meshQuality.ts');
+  console.log('\nIsotropic remeshing of scan-bud (coarsening about 10×; 8 rounds)');
+  console.log('| input vertices | triangles | output vertices | seconds | peak RSS | min angle in → out | explicit step (of a well-shaped mesh\'s) in → out |');
+  console.log('|---:|---:|---:|---:|---:|---:|---:|');
+  for (const target of (process.env.BENCH_REMESH_SIZES ?? '20000 60000 200000').split(/\s+/).filter(Boolean).map(Number)) {
+    const input = buildShape({ shape: 'scan-bud', vertices: target }).mesh;
+    const qi = meshQuality(input);
+    const t0 = performance.now();
+    const r = isotropicRemesh(input, { vertices: Math.round(target / 10) });
+    const seconds = (performance.now() - t0) / 1000;
+    const qo = meshQuality(r.mesh);
+    console.log(`| ${input.positions.length / 3} | ${input.triangles.length / 3} | ${r.mesh.positions.length / 3} | ${seconds.toFixed(1)} | ${Math.round(process.memoryUsage().rss / 2 ** 20)} MB | ${qi.angles.min.toFixed(1)}° → ${qo.angles.min.toFixed(1)}° | ${qi.explicitStepRatio.toFixed(4)} → ${qo.explicitStepRatio.toFixed(3)} |`);
+  }
+}
+
 if (process.env.BENCH_SWEEP !== '0') await sweepPoolBench();
