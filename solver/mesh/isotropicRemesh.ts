@@ -114,9 +114,12 @@ function collapseShort(p: number[], tris: number[], lo: number, hi: number): { t
   const nV = p.length / 3;
   const { map, ev, ef, key } = edgesOf(tris, nV);
   const { offsets, nb, boundary, faceOffsets, vf } = adjacency(tris, nV, ev, ef);
-  const order: number[] = [];
-  for (let e = 0; e < ev.length / 2; e++) if (dist(p, ev[2 * e], ev[2 * e + 1]) < lo) order.push(e);
-  order.sort((x, y) => dist(p, ev[2 * x], ev[2 * x + 1]) - dist(p, ev[2 * y], ev[2 * y + 1]));
+  const short: number[] = [], lengths: number[] = [];
+  for (let e = 0; e < ev.length / 2; e++) {
+    const l = dist(p, ev[2 * e], ev[2 * e + 1]);
+    if (l < lo) { short.push(e); lengths.push(l); }
+  }
+  const order = Uint32Array.from(short.keys()).sort((x, y) => lengths[x] - lengths[y]).map((k) => short[k]);
   const locked = new Uint8Array(nV);
   const remap = new Int32Array(nV);
   for (let i = 0; i < nV; i++) remap[i] = i;
