@@ -20,6 +20,9 @@ export interface MeshSourceOptions {
   units?: string;
   remesh?: string | boolean;
   edge?: string;
+  crease?: string;
+  fillHoles?: string;
+  smooth?: string;
 }
 
 export interface ResolvedMesh {
@@ -75,6 +78,8 @@ export async function resolveMesh(spec: string, o: MeshSourceOptions): Promise<R
     loop: parseCount(o.loop, '--loop') ?? 0,
     reorder: o.reorder,
     remesh: remeshOption(o),
+    fillHoles: parseCount(o.fillHoles, '--fill-holes', 3),
+    smooth: parseCount(o.smooth, '--smooth', 1),
   });
   mesh = repaired.mesh;
   vertexData = repaired.vertexData;
@@ -101,8 +106,11 @@ export function requireFemReady(mesh: Mesh, name: string): string[] {
 }
 
 /** --remesh [N] and --edge h as the repairs' remesh request (undefined without --remesh). */
-function remeshOption(o: MeshSourceOptions): { edge?: number; vertices?: number } | undefined {
+function remeshOption(o: MeshSourceOptions): { edge?: number; vertices?: number; crease?: number } | undefined {
   if (o.edge !== undefined && !o.remesh) throw new UsageError('--edge sets the target edge length of --remesh: add --remesh');
+  if (o.crease !== undefined && !o.remesh) throw new UsageError('--crease sets which creases --remesh keeps: add --remesh');
+  const crease = o.crease === undefined ? undefined : Number(o.crease);
+  if (crease !== undefined && !(crease > 0 && crease < 180)) throw new UsageError(`--crease must be an angle in degrees between 0 and 180, got "${o.crease}"`);
   if (!o.remesh) return undefined;
   const vertices = o.remesh === true ? undefined : parseCount(o.remesh, '--remesh', 4);
   let edge: number | undefined;
@@ -111,5 +119,5 @@ function remeshOption(o: MeshSourceOptions): { edge?: number; vertices?: number 
     if (!(Number.isFinite(edge) && edge > 0)) throw new UsageError(`--edge must be a length > 0, got "${o.edge}"`);
     if (vertices !== undefined) throw new UsageError('give --remesh N (a vertex count) or --edge h (a length), not both');
   }
-  return { edge, vertices };
+  return { edge, vertices, crease };
 }

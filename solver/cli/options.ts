@@ -39,6 +39,9 @@ export function addMeshOptions(cmd: Command): Command {
     .option('--reorder', 'renumber the vertices so neighbours are close in memory (reverse Cuthill–McKee; faster stepping on a scattered mesh)')
     .option('--remesh [vertices]', 'isotropic remeshing (Botsch–Kobbelt), to about this many vertices (default: the mean edge kept; --edge sets a length)')
     .option('--edge <length>', 'with --remesh: the target edge length')
+    .option('--crease <degrees>', 'with --remesh: keep edges where the surface folds by more than this (default: none; a scan\'s terraces are not creases)')
+    .option('--fill-holes <maxEdges>', 'close boundary loops of at most this many edges')
+    .option('--smooth <steps>', 'Taubin λ|μ smoothing steps (removes terraces without shrinking)')
     .option('--scale <factor>', 'multiply the coordinates by this as the mesh is read (0.001 turns µm into mm)')
     .option('--units <unit>', 'the length unit of the (scaled) coordinates, shown with lengths and areas (µm, mm, …)');
 }

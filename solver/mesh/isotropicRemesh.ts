@@ -9,6 +9,8 @@ export interface RemeshOptions {
   vertices?: number;
   /** rounds of split, collapse, flip, relax and project (default 8) */
   iterations?: number;
+  /** edges where the surface folds by more than this many degrees (between the normals) are creases, kept (default: none) */
+  creaseAngle?: number;
   /** per-vertex values to carry onto the new vertices (interpolated at their closest points) */
   vertexData?: Record<string, Float64Array>;
   onProgress?: (round: number, of: number, vertices: number) => void;
@@ -38,6 +40,20 @@ function edgesOf(tris: number[], nV: number) {
     }
   }
   return { map, ev, ef, key: (a: number, b: number) => Math.min(a, b) * nV + Math.max(a, b) };
+}
+
+/** Crease edges (the normals of their two triangles part by more than the limit) and the vertices on them. */
+function creases(p: number[], tris: number[], ev: number[], ef: number[], cosLimit: number): { edge: Uint8Array; vertex: Uint8Array } {
+  const edge = new Uint8Array(ev.length / 2), vertex = new Uint8Array(p.length / 3);
+  if (cosLimit <= -1) return { edge, vertex };
+  for (let e = 0; e < ev.length / 2; e++) {
+    const f0 = ef[2 * e], f1 = ef[2 * e + 1];
+    if (f1 < 0) continue;
+    const n0 = normalOf(p, tris[3 * f0], tris[3 * f0 + 1], tris[3 * f0 + 2]), n1 = normalOf(p, tris[3 * f1], tris[3 * f1 + 1], tris[3 * f1 + 2]);
+    const c = (n0[0] * n1[0] + n0[1] * n1[1] + n0[2] * n1[2]) / (Math.hypot(...n0) * Math.hypot(...n1) || 1);
+    if (c < cosLimit) { edge[e] = 1; vertex[ev[2 * e]] = 1; vertex[ev[2 * e + 1]] = 1; }
+  }
+  return { edge, vertex };
 }
 
 /** Vertex → neighbours and vertex → triangles (CSR), boundary flags from the edges with one triangle. */
@@ -110,10 +126,16 @@ function splitLong(p: number[], tris: number[], hi: number): { tris: number[]; s
 }
 
 /** Collapse edges shorter than `lo` (an independent set), keeping boundaries, topology and orientation. */
-function collapseShort(p: number[], tris: number[], lo: number, hi: number): { tris: number[]; collapses: number } {
+function collapseShort(p: number[], tris: number[], lo: number, hi: number, cosCrease: number): { tris: number[]; collapses: number } {
   const nV = p.length / 3;
   const { map, ev, ef, key } = edgesOf(tris, nV);
-  const { offsets, nb, boundary, faceOffsets, vf } = adjacency(tris, nV, ev, ef);
+  const { offsets, nb, boundary: open, faceOffsets, vf } = adjacency(tris, nV, ev, ef);
+  // boundary and crease vertices stay put, and only edges along them may take one into another
+  const crease = creases(p, tris, ev, ef, cosCrease);
+  const boundary = open.map((b, v) => b | crease.vertex[v]);
+  // feature edges per vertex: 2 along a boundary or crease, more at a corner (which never moves)
+  const featureDegree = new Uint8Array(nV);
+  for (let e = 0; e < ev.length / 2; e++) if (ef[2 * e + 1] < 0 || crease.edge[e]) { featureDegree[ev[2 * e]]++; featureDegree[ev[2 * e + 1]]++; }
   const short: number[] = [], lengths: number[] = [];
   for (let e = 0; e < ev.length / 2; e++) {
     const l = dist(p, ev[2 * e], ev[2 * e + 1]);
@@ -128,9 +150,13 @@ function collapseShort(p: number[], tris: number[], lo: number, hi: number): { t
   for (const e of order) {
     let a = ev[2 * e], b = ev[2 * e + 1];
     if (locked[a] || locked[b]) continue;
-    const onBoundary = ef[2 * e + 1] < 0;
+    const onBoundary = ef[2 * e + 1] < 0 || crease.edge[e] === 1;
     if (boundary[a] && boundary[b] && !onBoundary) continue; // would pinch the surface
     if (boundary[b] && !boundary[a]) [a, b] = [b, a]; // keep the boundary vertex where it is
+    if (featureDegree[b] > 2) {
+      if (featureDegree[a] > 2) continue; // two corners
+      [a, b] = [b, a]; // keep the corner
+    }
     if (offsets[a + 1] - offsets[a] <= 3 || offsets[b + 1] - offsets[b] <= 3) continue;
     const keep = boundary[a];
     const target = keep ? [p[3 * a], p[3 * a + 1], p[3 * a + 2]] : [0, 1, 2].map((d) => 0.5 * (p[3 * a + d] + p[3 * b + d]));
@@ -138,7 +164,7 @@ function collapseShort(p: number[], tris: number[], lo: number, hi: number): { t
     for (let q = offsets[a]; q < offsets[a + 1]; q++) mark[nb[q]] = e;
     let common = 0;
     for (let q = offsets[b]; q < offsets[b + 1]; q++) if (mark[nb[q]] === e) common++;
-    if (common !== (onBoundary ? 1 : 2)) continue;
+    if (common !== (ef[2 * e + 1] < 0 ? 1 : 2)) continue;
     // no edge of the new star longer than hi
     let ok = true;
     for (const v of [a, b]) {
@@ -184,10 +210,11 @@ function collapseShort(p: number[], tris: number[], lo: number, hi: number): { t
  * Flip interior edges where it brings the four vertices' valences nearer 6 (4 on the boundary), or
  * (criterion 'delaunay') where the angles opposite the edge sum to more than π.
  */
-function flipEdges(p: number[], tris: number[], criterion: 'valence' | 'delaunay'): number {
+function flipEdges(p: number[], tris: number[], criterion: 'valence' | 'delaunay', cosCrease: number): number {
   const nV = p.length / 3;
   const { map, ev, ef, key } = edgesOf(tris, nV);
   const { offsets, boundary } = adjacency(tris, nV, ev, ef);
+  const crease = creases(p, tris, ev, ef, cosCrease);
   const valence = new Int32Array(nV);
   for (let i = 0; i < nV; i++) valence[i] = offsets[i + 1] - offsets[i];
   const target = (v: number) => (boundary[v] ? 4 : 6);
@@ -195,7 +222,7 @@ function flipEdges(p: number[], tris: number[], criterion: 'valence' | 'delaunay
   let flips = 0;
   for (let e = 0; e < ev.length / 2; e++) {
     const f0 = ef[2 * e], f1 = ef[2 * e + 1];
-    if (f1 < 0 || used[f0] || used[f1]) continue;
+    if (f1 < 0 || used[f0] || used[f1] || crease.edge[e]) continue;
     // orient: f0 holds a→b, f1 holds b→a
     let a = ev[2 * e], b = ev[2 * e + 1];
     const k0 = [0, 1, 2].find((k) => tris[3 * f0 + k] === a)!;
@@ -235,16 +262,17 @@ function flipEdges(p: number[], tris: number[], criterion: 'valence' | 'delaunay
  * Remove interior vertices of valence 3 (a vertex inside one triangle of its neighbours: its star is
  * small whatever its angles, so it sets the explicit step): its three triangles become that one.
  */
-function removeValence3(p: number[], tris: number[]): { tris: number[]; removed: number } {
+function removeValence3(p: number[], tris: number[], cosCrease: number): { tris: number[]; removed: number } {
   const nV = p.length / 3;
   const { map, ev, ef, key } = edgesOf(tris, nV);
   const { offsets, nb, boundary, faceOffsets, vf } = adjacency(tris, nV, ev, ef);
+  const crease = creases(p, tris, ev, ef, cosCrease);
   const gone = new Uint8Array(tris.length / 3);
   const locked = new Uint8Array(nV);
   const added: number[] = [];
   let removed = 0;
   for (let v = 0; v < nV; v++) {
-    if (boundary[v] || locked[v] || offsets[v + 1] - offsets[v] !== 3 || faceOffsets[v + 1] - faceOffsets[v] !== 3) continue;
+    if (boundary[v] || crease.vertex[v] || locked[v] || offsets[v + 1] - offsets[v] !== 3 || faceOffsets[v + 1] - faceOffsets[v] !== 3) continue;
     const ring = [nb[offsets[v]], nb[offsets[v] + 1], nb[offsets[v] + 2]];
     if (ring.some((x) => locked[x] || offsets[x + 1] - offsets[x] <= 3)) continue;
     // the outer triangle, in the orientation of v's triangles: from face (v, x, y) the edge x→y
@@ -274,10 +302,11 @@ function removeValence3(p: number[], tris: number[]): { tris: number[]; removed:
 }
 
 /** Move every interior vertex towards the centroid of its neighbours, within its tangent plane. */
-function relaxTangentially(p: number[], tris: number[]): void {
+function relaxTangentially(p: number[], tris: number[], cosCrease: number): void {
   const nV = p.length / 3;
   const { ev, ef } = edgesOf(tris, nV);
   const { offsets, nb, boundary } = adjacency(tris, nV, ev, ef);
+  const crease = creases(p, tris, ev, ef, cosCrease);
   const normal = new Float64Array(3 * nV);
   for (let f = 0; f < tris.length / 3; f++) {
     const n = normalOf(p, tris[3 * f], tris[3 * f + 1], tris[3 * f + 2]);
@@ -285,7 +314,7 @@ function relaxTangentially(p: number[], tris: number[]): void {
   }
   const next = p.slice();
   for (let v = 0; v < nV; v++) {
-    if (boundary[v] || offsets[v + 1] === offsets[v]) continue;
+    if (boundary[v] || crease.vertex[v] || offsets[v + 1] === offsets[v]) continue;
     const c = [0, 0, 0];
     const k = offsets[v + 1] - offsets[v];
     for (let q = offsets[v]; q < offsets[v + 1]; q++) for (let d = 0; d < 3; d++) c[d] += p[3 * nb[q] + d] / k;
@@ -298,12 +327,30 @@ function relaxTangentially(p: number[], tris: number[]): void {
   for (let i = 0; i < p.length; i++) p[i] = next[i];
 }
 
+/** Renumber the vertices the triangles use, in place (unused ones dropped); the triangles renumbered. */
+function compactVertices(p: number[], tris: number[]): number[] {
+  const map = new Int32Array(p.length / 3).fill(-1);
+  let n = 0;
+  for (const v of tris) if (map[v] < 0) map[v] = n++;
+  const q = new Array<number>(3 * n);
+  for (let v = 0; v < map.length; v++) {
+    const w = map[v];
+    if (w >= 0) { q[3 * w] = p[3 * v]; q[3 * w + 1] = p[3 * v + 1]; q[3 * w + 2] = p[3 * v + 2]; }
+  }
+  p.length = 3 * n;
+  for (let i = 0; i < 3 * n; i++) p[i] = q[i];
+  return tris.map((v) => map[v]);
+}
+
 /**
  * Isotropic remeshing in the manner of Botsch & Kobbelt (2004): rounds of
  * splitting edges longer than 4/3·h, collapsing edges shorter than 4/5·h,
  * flipping edges towards valence 6 (4 on the boundary), tangential
  * relaxation and projection back onto the input surface (closest points
- * through a BVH). Open boundaries stay where they are (their vertices do not
+ * through a BVH). With `creaseAngle`, creases (edges whose triangles'
+ * normals part by more than it) are kept like boundaries: their vertices stay,
+ * edges along them are split and collapsed along them, never flipped. Open
+ * boundaries stay where they are (their vertices do not
  * move off them, edges along them are split and collapsed along them); the
  * genus and the number of boundary loops are kept (collapses respect the link
  * condition); triangles are never turned over. Coarsens a dense scan as well
@@ -325,6 +372,8 @@ export function isotropicRemesh(input: Mesh, options: RemeshOptions = {}): Remes
   }
   if (!(h > 0) || !Number.isFinite(h)) throw new Error(`remesh: the target edge length must be a positive number, got ${h}`);
   const hi = (4 / 3) * h, lo = (4 / 5) * h;
+  // creases only when asked for: a scan's terraces fold as sharply as a real crease, and must go
+  const cosCrease = options.creaseAngle === undefined ? -2 : Math.cos((options.creaseAngle * Math.PI) / 180);
   const projector = new SurfaceProjector(input);
   const p = Array.from(input.positions);
   let tris = Array.from(input.triangles);
@@ -336,19 +385,20 @@ export function isotropicRemesh(input: Mesh, options: RemeshOptions = {}): Remes
       if (!s.splits) break;
     }
     for (let pass = 0; pass < 40; pass++) {
-      const c = collapseShort(p, tris, lo, hi);
+      const c = collapseShort(p, tris, lo, hi, cosCrease);
       tris = c.tris;
-      if (!c.collapses) break;
+      if (c.collapses < 0.001 * p.length / 3) break; // (the last few are not worth a pass each)
     }
-    tris = removeValence3(p, tris).tris;
-    flipEdges(p, tris, 'valence');
-    relaxTangentially(p, tris);
+    tris = removeValence3(p, tris, cosCrease).tris;
+    flipEdges(p, tris, 'valence', cosCrease);
+    relaxTangentially(p, tris, cosCrease);
     // the last rounds also make the triangulation Delaunay, which lifts the smallest angles
     if (round >= iterations - 3) {
-      for (let pass = 0; pass < 4 && flipEdges(p, tris, 'delaunay') > 0; pass++);
-      tris = removeValence3(p, tris).tris;
+      for (let pass = 0; pass < 4 && flipEdges(p, tris, 'delaunay', cosCrease) > 0; pass++);
+      tris = removeValence3(p, tris, cosCrease).tris;
     }
-    // back onto the input surface (unreferenced vertices left by collapses project harmlessly)
+    // drop the vertices collapses left behind, then back onto the input surface
+    tris = compactVertices(p, tris);
     for (let i = 0; i < p.length / 3; i++) projector.project(p, i);
     options.onProgress?.(round + 1, iterations, p.length / 3);
   }

@@ -9,6 +9,8 @@ import { validateMesh } from './validateMesh.ts';
 import { meshTopology } from './meshTopology.ts';
 import { MAX_SHAPE_VERTICES } from '../defaults.ts';
 import { isotropicRemesh } from './isotropicRemesh.ts';
+import { fillHoles } from './fillHoles.ts';
+import { taubinSmooth } from './taubinSmooth.ts';
 import { LOCALITY_WINDOW, localityOrder, renumberVertices, scatteredEdgeFraction } from './localityOrder.ts';
 
 const percent = (x: number) => `${(100 * x).toFixed(x < 0.1 ? 1 : 0)} %`;
@@ -20,8 +22,12 @@ export interface MeshRepairs {
   fixOrientation?: boolean;
   refine?: number;
   loop?: number;
-  /** isotropic remeshing (after the repairs, before refinement): to an edge length or a vertex count (neither: the mean edge) */
-  remesh?: { edge?: number; vertices?: number };
+  /** close boundary loops of at most this many edges (after the repairs) */
+  fillHoles?: number;
+  /** Taubin λ|μ smoothing steps (after filling holes, before remeshing) */
+  smooth?: number;
+  /** isotropic remeshing (after the repairs, before refinement): to an edge length or a vertex count (neither: the mean edge), keeping creases sharper than `crease` degrees */
+  remesh?: { edge?: number; vertices?: number; crease?: number };
   /** renumber the vertices in a locality order (last, after any refinement) */
   reorder?: boolean;
 }
@@ -36,7 +42,7 @@ export class MeshRepairError extends Error {
 
 /**
  * Apply repairs and refinements in a fixed order (weld, drop unreferenced,
- * orient, remesh, midpoint refinement, Loop subdivision, renumbering), carrying
+ * orient, fill holes, smooth, remesh, midpoint refinement, Loop subdivision, renumbering), carrying
  * per-vertex data along. Errors say what to repair first.
  */
 export function repairMesh(input: Mesh, data: Record<string, Float64Array>, o: MeshRepairs): { mesh: Mesh; vertexData: Record<string, Float64Array>; notes: string[] } {
@@ -71,12 +77,23 @@ export function repairMesh(input: Mesh, data: Record<string, Float64Array>, o: M
     mesh = r.mesh;
     notes.push(r.orientable ? `reoriented ${r.flipped} triangles` : 'the surface is not orientable; orientation left partly inconsistent');
   }
+  if (o.fillHoles) {
+    const r = fillHoles(mesh, o.fillHoles, vertexData);
+    mesh = r.mesh;
+    vertexData = r.vertexData;
+    notes.push(r.filled.length ? `filled ${r.filled.length} hole(s) of ${r.filled.join(', ')} edges` : `no hole of at most ${o.fillHoles} edges to fill`);
+    if (r.kept.length) notes.push(`left open: boundary loop(s) of ${r.kept.join(', ')} edges (more than ${o.fillHoles})`);
+  }
+  if (o.smooth) {
+    mesh = taubinSmooth(mesh, o.smooth);
+    notes.push(`smoothed by ${o.smooth} Taubin λ|μ step(s) (λ = 0.5, μ = −0.53)`);
+  }
   if (o.remesh) {
     const pre = validateMesh(mesh);
     if (pre.errors.length > 0) throw new MeshRepairError('remesh', `cannot remesh a mesh with errors: ${pre.errors[0].message}; repair it first (weld, drop unreferenced vertices)`);
     if (o.remesh.vertices !== undefined && o.remesh.vertices > MAX_SHAPE_VERTICES) throw new MeshRepairError('remesh', `remeshing to ${o.remesh.vertices} vertices is more than the ${MAX_SHAPE_VERTICES} a mesh may have`);
     const before = mesh.positions.length / 3;
-    const r = isotropicRemesh(mesh, { ...o.remesh, vertexData });
+    const r = isotropicRemesh(mesh, { edge: o.remesh.edge, vertices: o.remesh.vertices, creaseAngle: o.remesh.crease, vertexData });
     const after = validateMesh(r.mesh);
     if (after.errors.length > 0) throw new MeshRepairError('remesh', `remeshing left a mesh the finite elements cannot use (${after.errors[0].message}); try another edge length, or clean the input where it was made`);
     mesh = r.mesh;

@@ -101,7 +101,10 @@ export interface MeshSpec {
   /** renumber the vertices so that neighbours are close in memory (faster stepping on a scattered mesh file) */
   reorder?: boolean;
   /** isotropic remeshing (Botsch–Kobbelt) before any refinement: true (the mean edge), or a vertex count or edge length */
-  remesh?: boolean | { vertices?: number; edge?: number };
+  remesh?: boolean | { vertices?: number; edge?: number; crease?: number };
+  /** close boundary loops of at most this many edges; Taubin smoothing steps (both before remeshing) */
+  fillHoles?: number;
+  smooth?: number;
   /** multiply the coordinates by this as the mesh is read (0.001 turns µm into mm); every length in the scenario is then in the scaled unit */
   scale?: number;
   /** the length unit of the (scaled) coordinates, shown with lengths, wavelengths, areas and k² (µm, mm, …) */
@@ -207,7 +210,9 @@ export const SCENARIO_SCHEMA = {
         loop: { type: 'integer', minimum: 0, maximum: 6 },
         reorder: { type: 'boolean' },
         scale: { type: 'number', exclusiveMinimum: 0 },
-        remesh: { description: 'true, or {vertices: N} or {edge: h}', oneOf: [{ type: 'boolean' }, { type: 'object', additionalProperties: false, maxProperties: 1, properties: { vertices: { type: 'integer', minimum: 4 }, edge: { type: 'number', exclusiveMinimum: 0 } } }] },
+        remesh: { description: 'true, or {vertices: N} or {edge: h}, with crease: degrees', oneOf: [{ type: 'boolean' }, { type: 'object', additionalProperties: false, properties: { vertices: { type: 'integer', minimum: 4 }, edge: { type: 'number', exclusiveMinimum: 0 }, crease: { type: 'number', exclusiveMinimum: 0, exclusiveMaximum: 180 } } }] },
+        fillHoles: { type: 'integer', minimum: 3 },
+        smooth: { type: 'integer', minimum: 1, maximum: 1000 },
         units: { type: 'string', minLength: 1, maxLength: 16 },
       },
     },

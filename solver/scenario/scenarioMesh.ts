@@ -41,8 +41,9 @@ export function scenarioMesh(spec: MeshSpec, readFile: (file: string) => MeshFil
     source = read.source;
   }
   if (spec.scale !== undefined && spec.scale !== 1) mesh = scaleMesh(mesh, spec.scale);
+  if (typeof spec.remesh === 'object' && spec.remesh.vertices !== undefined && spec.remesh.edge !== undefined) throw new Error('remesh: give vertices (a count) or edge (a length), not both');
   const weld = spec.weld === undefined || spec.weld === false ? undefined : spec.weld === true ? 0 : spec.weld;
-  const repaired = repairMesh(mesh, vertexData, { weld, dropUnreferenced: spec.dropUnreferenced, fixOrientation: spec.fixOrientation, refine: spec.refine, loop: spec.loop, reorder: spec.reorder, remesh: spec.remesh === true ? {} : spec.remesh || undefined });
+  const repaired = repairMesh(mesh, vertexData, { weld, dropUnreferenced: spec.dropUnreferenced, fixOrientation: spec.fixOrientation, refine: spec.refine, loop: spec.loop, reorder: spec.reorder, remesh: spec.remesh === true ? {} : spec.remesh || undefined, fillHoles: spec.fillHoles, smooth: spec.smooth });
   const report = validateMesh(repaired.mesh);
   if (report.errors.length) {
     throw new Error(`the mesh cannot be used for surface finite elements: ${report.errors.map((e) => e.message).join('; ')}`);
@@ -52,7 +53,7 @@ export function scenarioMesh(spec: MeshSpec, readFile: (file: string) => MeshFil
   if (scattered > SCATTERED_ORDER_FRACTION) {
     notes.push(`the vertex order is scattered (${Math.round(100 * scattered)} % of edges join vertices more than ${LOCALITY_WINDOW} apart), which makes stepping up to 3× slower and threads gain little: add reorder: true to the mesh section (vertex numbers in the outputs then follow the new order), or renumber the file once with placode mesh ${spec.file ?? 'FILE'} --reorder -o NEW.ply`);
   }
-  for (const k of ['weld', 'fixOrientation', 'dropUnreferenced', 'refine', 'loop', 'reorder', 'remesh', 'scale', 'units'] as const) if (spec[k] !== undefined) source[k] = spec[k];
+  for (const k of ['weld', 'fixOrientation', 'dropUnreferenced', 'refine', 'loop', 'reorder', 'remesh', 'fillHoles', 'smooth', 'scale', 'units'] as const) if (spec[k] !== undefined) source[k] = spec[k];
   return { mesh: repaired.mesh, vertexData: repaired.vertexData, source, notes };
 }
 

@@ -12,7 +12,7 @@ import { meshStatistics } from '../../solver/mesh/meshStatistics.ts';
 import { meshArea } from '../../solver/mesh/triangleAreas.ts';
 import { laplaceBeltramiEigenpairs } from '../../solver/fem/laplaceBeltramiEigenpairs.ts';
 import { edgeLengthStats } from '../../solver/mesh/edgeLengthStats.ts';
-import type { Mesh } from '../../solver/mesh/Mesh.ts';
+import { makeMesh, type Mesh } from '../../solver/mesh/Mesh.ts';
 
 const temp = useTempFiles('placode-remesh-');
 
@@ -120,4 +120,64 @@ describe('isotropic remeshing (Botsch & Kobbelt 2004)', () => {
     expect(bad.err).toMatch(/--edge sets the target edge length of --remesh: add --remesh/);
     void readFileSync; void join;
   }, 60_000);
+});
+
+describe('creases, holes and terraces', () => {
+  /** A cube [−1, 1]³ of n × n squares a face, welded. */
+  function cube(n: number): Mesh {
+    const p: number[] = [], t: number[] = [];
+    const index = new Map<string, number>();
+    const vertex = (x: number, y: number, z: number) => {
+      const key = [x, y, z].map((c) => c.toFixed(9)).join(',');
+      let v = index.get(key);
+      if (v === undefined) { v = p.length / 3; p.push(x, y, z); index.set(key, v); }
+      return v;
+    };
+    for (const axis of [0, 1, 2]) for (const side of [-1, 1]) {
+      for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) {
+        const at = (a: number, b: number) => { const c = [0, 0, 0]; c[axis] = side; c[(axis + 1) % 3] = -1 + (2 * a) / n; c[(axis + 2) % 3] = -1 + (2 * b) / n; return vertex(c[0], c[1], c[2]); };
+        const [v00, v10, v11, v01] = [at(i, j), at(i + 1, j), at(i + 1, j + 1), at(i, j + 1)];
+        if (side > 0) t.push(v00, v10, v11, v00, v11, v01);
+        else t.push(v00, v11, v10, v00, v01, v11);
+      }
+    }
+    return makeMesh(Float64Array.from(p), Uint32Array.from(t));
+  }
+
+  it('with a crease angle the cube keeps its corners and edges (its area to 0.5 %); without, a coarse remesh rounds them', () => {
+    const input = cube(16);
+    expect(meshStatistics(input).errors).toEqual([]);
+    const keep = isotropicRemesh(input, { edge: 0.25, creaseAngle: 45 });
+    const corners = (m: Mesh) => { let c = 0; for (let i = 0; i < m.positions.length / 3; i++) if ([0, 1, 2].every((d) => Math.abs(Math.abs(m.positions[3 * i + d]) - 1) < 1e-9)) c++; return c; };
+    expect(corners(keep.mesh)).toBe(8);
+    expect(Math.abs(meshArea(keep.mesh) / 24 - 1)).toBeLessThan(0.005);
+    const round = isotropicRemesh(input, { edge: 0.25 });
+    expect(meshArea(round.mesh)).toBeLessThan(meshArea(keep.mesh));
+    expect(meshStatistics(keep.mesh).errors).toEqual([]);
+  });
+
+  it('fills small holes with fans oriented as the surface, leaves larger loops open; Taubin smoothing keeps the volume that plain Laplacian smoothing loses', async () => {
+    const { fillHoles } = await import('../../solver/mesh/fillHoles.ts');
+    const { taubinSmooth } = await import('../../solver/mesh/taubinSmooth.ts');
+    // a sphere with two triangles' worth of hole: remove two adjacent triangles
+    const sphere = buildShape({ shape: 'sphere', vertices: 642 }).mesh;
+    const holed = makeMesh(sphere.positions, Uint32Array.from(Array.from(sphere.triangles).slice(6)));
+    expect(meshStatistics(holed).boundaryLoops).toBe(1);
+    const filled = fillHoles(holed, 10);
+    expect(filled.filled).toEqual([4]);
+    const s = meshStatistics(filled.mesh);
+    expect([s.boundaryLoops, s.genus, s.errors.length, s.warnings.length]).toEqual([0, 0, 0, 0]); // closed, consistently oriented
+    const bud = buildShape({ shape: 'limb-bud', vertices: 2000 }).mesh;
+    const open = fillHoles(bud, 10);
+    expect(open.filled).toEqual([]);
+    expect(open.kept.length).toBe(1); // the bud's base
+    // volume of a closed surface, by the divergence theorem
+    const volume = (m: Mesh) => { let v = 0; const p = m.positions, t = m.triangles; for (let f = 0; f < t.length / 3; f++) { const [a, b, c] = [3 * t[3 * f], 3 * t[3 * f + 1], 3 * t[3 * f + 2]]; v += (p[a] * (p[b + 1] * p[c + 2] - p[b + 2] * p[c + 1]) - p[a + 1] * (p[b] * p[c + 2] - p[b + 2] * p[c]) + p[a + 2] * (p[b] * p[c + 1] - p[b + 1] * p[c])) / 6; } return v; };
+    const scan = buildShape({ shape: 'scan-bud', vertices: 8000 }).mesh;
+    const v0 = volume(scan);
+    const taubin = taubinSmooth(scan, 10), laplace = taubinSmooth(scan, 20, 0.5, 0.5 * 0); // 20 plain λ steps (μ = 0)
+    expect(Math.abs(volume(taubin) / v0 - 1)).toBeLessThan(0.01);
+    expect(1 - volume(laplace) / v0).toBeGreaterThan(3 * Math.abs(volume(taubin) / v0 - 1));
+    expect(meshQuality(taubin).angles.min).toBeGreaterThan(meshQuality(scan).angles.min);
+  });
 });
