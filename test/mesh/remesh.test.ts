@@ -181,3 +181,24 @@ describe('creases, holes and terraces', () => {
     expect(meshQuality(taubin).angles.min).toBeGreaterThan(meshQuality(scan).angles.min);
   });
 });
+
+describe('remeshing what a scan brings', () => {
+  it('two separate pieces stay two; a non-manifold scan is refused with the place named and nothing written', async () => {
+    const a = buildShape({ shape: 'sphere', vertices: 1000 }).mesh;
+    const n = a.positions.length / 3;
+    const both = makeMesh(Float64Array.from([...a.positions, ...Array.from(a.positions, (x, i) => (i % 3 === 0 ? x + 3 : x))]), Uint32Array.from([...a.triangles, ...Array.from(a.triangles, (v) => v + n)]));
+    const r = isotropicRemesh(both, { edge: 0.2 });
+    const s = meshStatistics(r.mesh);
+    expect([s.components, s.genus, s.errors.length]).toEqual([2, 0, 0]);
+    // three triangles on one edge: not a manifold
+    const fin = makeMesh(Float64Array.from([...a.positions, 0, 0, 2]), Uint32Array.from([...a.triangles, a.triangles[0], a.triangles[1], n]));
+    const file = temp.path('fin.ply'), out = temp.path('fin-remeshed.ply');
+    const { saveMeshFile } = await import('../../solver/io/meshFiles.ts');
+    saveMeshFile(file, fin);
+    const m = await run('mesh', file, '--remesh', '500', '-o', out);
+    expect(m.code).not.toBe(0);
+    expect(m.err).toMatch(/cannot remesh a mesh with errors: .*edge/i);
+    const { existsSync } = await import('node:fs');
+    expect(existsSync(out)).toBe(false);
+  }, 60_000);
+});
