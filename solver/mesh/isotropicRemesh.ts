@@ -90,6 +90,9 @@ function normalOf(p: number[], a: number, b: number, c: number, over?: { v: numb
 /** Split every edge longer than `hi` at its midpoint (each triangle by the pattern of its split edges). */
 function splitLong(p: number[], tris: number[], hi: number): { tris: number[]; splits: number } {
   const nV = p.length / 3;
+  let any = false; // (a scan being coarsened has none: skip building the edges)
+  for (let f = 0; f < tris.length / 3 && !any; f++) for (let k = 0; k < 3; k++) if (dist(p, tris[3 * f + k], tris[3 * f + ((k + 1) % 3)]) > hi) { any = true; break; }
+  if (!any) return { tris, splits: 0 };
   const { map, ev, key } = edgesOf(tris, nV);
   const mid = new Int32Array(ev.length / 2).fill(-1);
   let splits = 0;
@@ -160,16 +163,20 @@ function collapseShort(p: number[], tris: number[], lo: number, hi: number, cosC
     if (offsets[a + 1] - offsets[a] <= 3 || offsets[b + 1] - offsets[b] <= 3) continue;
     const keep = boundary[a];
     const target = keep ? [p[3 * a], p[3 * a + 1], p[3 * a + 2]] : [0, 1, 2].map((d) => 0.5 * (p[3 * a + d] + p[3 * b + d]));
-    // link condition: the endpoints share exactly the vertices opposite the edge
-    for (let q = offsets[a]; q < offsets[a + 1]; q++) mark[nb[q]] = e;
+    // link condition: the endpoints share exactly the vertices opposite the edge (the lists read through
+    // the collapses this pass already made, so only the collapsed pair itself need be locked)
+    for (let q = offsets[a]; q < offsets[a + 1]; q++) mark[remap[nb[q]]] = e;
     let common = 0;
-    for (let q = offsets[b]; q < offsets[b + 1]; q++) if (mark[nb[q]] === e) common++;
+    for (let q = offsets[b]; q < offsets[b + 1]; q++) {
+      const w = remap[nb[q]];
+      if (mark[w] === e) { common++; mark[w] = -1; }
+    }
     if (common !== (ef[2 * e + 1] < 0 ? 1 : 2)) continue;
     // no edge of the new star longer than hi
     let ok = true;
     for (const v of [a, b]) {
       for (let q = offsets[v]; q < offsets[v + 1] && ok; q++) {
-        const n = nb[q];
+        const n = remap[nb[q]];
         if (n === a || n === b) continue;
         if (Math.hypot(target[0] - p[3 * n], target[1] - p[3 * n + 1], target[2] - p[3 * n + 2]) > hi) ok = false;
       }
@@ -179,8 +186,8 @@ function collapseShort(p: number[], tris: number[], lo: number, hi: number, cosC
     for (const v of [a, b]) {
       for (let q = faceOffsets[v]; q < faceOffsets[v + 1] && ok; q++) {
         const f = vf[q];
-        const t = [tris[3 * f], tris[3 * f + 1], tris[3 * f + 2]];
-        if (t.includes(a) && t.includes(b)) continue;
+        const t = [remap[tris[3 * f]], remap[tris[3 * f + 1]], remap[tris[3 * f + 2]]];
+        if ((t.includes(a) && t.includes(b)) || t[0] === t[1] || t[1] === t[2] || t[2] === t[0]) continue;
         const before = normalOf(p, t[0], t[1], t[2]);
         const after = normalOf(p, t[0], t[1], t[2], { v, x: target[0], y: target[1], z: target[2] });
         const dot = before[0] * after[0] + before[1] * after[1] + before[2] * after[2];
@@ -190,10 +197,8 @@ function collapseShort(p: number[], tris: number[], lo: number, hi: number, cosC
     if (!ok) continue;
     remap[b] = a;
     p[3 * a] = target[0]; p[3 * a + 1] = target[1]; p[3 * a + 2] = target[2];
-    for (const v of [a, b]) {
-      locked[v] = 1;
-      for (let q = offsets[v]; q < offsets[v + 1]; q++) locked[nb[q]] = 1;
-    }
+    locked[a] = 1;
+    locked[b] = 1;
     collapses++;
   }
   void map; void key;
@@ -399,7 +404,7 @@ export function isotropicRemesh(input: Mesh, options: RemeshOptions = {}): Remes
     }
     // drop the vertices collapses left behind, then back onto the input surface
     tris = compactVertices(p, tris);
-    for (let i = 0; i < p.length / 3; i++) projector.project(p, i);
+    for (let i = 0; i < p.length / 3; i++) projector.project(p, i, h);
     options.onProgress?.(round + 1, iterations, p.length / 3);
   }
   // drop the vertices collapses left behind, carry the data to the rest
@@ -415,7 +420,7 @@ export function isotropicRemesh(input: Mesh, options: RemeshOptions = {}): Remes
     const w = used[v];
     if (w < 0) continue;
     at[0] = p[3 * v]; at[1] = p[3 * v + 1]; at[2] = p[3 * v + 2];
-    projector.project(at, 0);
+    projector.project(at, 0, h);
     positions[3 * w] = at[0]; positions[3 * w + 1] = at[1]; positions[3 * w + 2] = at[2];
     for (const [name, values] of fields) data[name][w] = projector.interpolate(values);
   }

@@ -27,10 +27,13 @@ export class SurfaceProjector {
     this.order = geometry.index!.array;
   }
 
-  /** Move (x, y, z) at `out[3i..3i+2]` to its closest point on the surface. */
-  project(out: Float64Array | number[], i: number): void {
+  /**
+   * Move (x, y, z) at `out[3i..3i+2]` to its closest point on the surface. `near`: a distance the
+   * point is expected within (the search looks no farther first, which prunes most of the tree).
+   */
+  project(out: Float64Array | number[], i: number, near = Infinity): void {
     this.query.set(out[3 * i], out[3 * i + 1], out[3 * i + 2]);
-    this.bvh.closestPointToPoint(this.query, this.hit);
+    if (!this.bvh.closestPointToPoint(this.query, this.hit, 0, near) && near < Infinity) this.bvh.closestPointToPoint(this.query, this.hit);
     const h = this.hit.point;
     this.distance = this.hit.distance;
     this.triangle = this.hit.faceIndex;
