@@ -8,6 +8,7 @@ import { marchingTetrahedra } from '../../meshes/shapes/marchingTetrahedra.ts';
 import { isotropicRemesh } from '../../solver/mesh/isotropicRemesh.ts';
 import { SurfaceProjector } from '../../solver/mesh/surfaceProjector.ts';
 import { meshQuality } from '../../solver/fem/meshQuality.ts';
+import * as meshQualityModule from '../../solver/fem/meshQuality.ts';
 import { meshStatistics } from '../../solver/mesh/meshStatistics.ts';
 import { meshArea } from '../../solver/mesh/triangleAreas.ts';
 import { laplaceBeltramiEigenpairs } from '../../solver/fem/laplaceBeltramiEigenpairs.ts';
@@ -58,9 +59,16 @@ function hausdorffToInput(output: Mesh, input: Mesh): number {
 describe('isotropic remeshing (Botsch & Kobbelt 2004)', () => {
   it('a marching-tetrahedra sphere: well-shaped triangles, the area and topology kept, close to the input, eigenvalues within the P1 error of l(l+1)', () => {
     const input = marchedSphere(0.05);
-    expect(meshQuality(input).slivers).toBeGreaterThan(100);
+    const before = meshQuality(input);
+    expect(before.slivers).toBeGreaterThan(100);
+    // the unremeshed scan: its explicit step is a tiny share of a well-shaped mesh's, and the warning names the worst triangles
+    expect(before.explicitStepRatio).toBeLessThan(1e-4);
+    const { qualityWarnings } = meshQualityModule;
+    expect(qualityWarnings(before).join('\n')).toContain(`triangle ${before.worst[0].triangle} (vertices ${before.worst[0].vertices.join(', ')}`);
     const r = isotropicRemesh(input, { edge: 0.1 });
     const q = meshQuality(r.mesh);
+    expect(q.explicitStepRatio / before.explicitStepRatio).toBeGreaterThan(100);
+    expect(qualityWarnings(q)).toEqual([]);
     expect(q.angles.min).toBeGreaterThanOrEqual(25);
     expect(anglesInRange(r.mesh)).toBeGreaterThanOrEqual(0.95);
     expect(Math.abs(meshArea(r.mesh) / meshArea(input) - 1)).toBeLessThan(0.005);
