@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, mkdirSync, rmSync, writeFileSync, symlinkSync } from 'node:fs';
-import { request } from 'node:http';
+import { Agent, request } from 'node:http';
+import { fileURLToPath } from 'node:url';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import type { Server } from 'node:http';
@@ -86,4 +87,37 @@ describe('the viewer server', () => {
     expect(insideRoot(dir, '/a/../../b')).toBeUndefined();
     expect(insideRoot(dir, '/a/%2e%2e/%2e%2e/b')).toBeUndefined();
   });
+});
+
+describe('placode view as a real process', () => {
+  for (const signal of ['SIGINT', 'SIGTERM'] as const) {
+    it(`exits within 1 s of the first ${signal}, its port closed, with a page connected`, async () => {
+      const { spawn } = await import('node:child_process');
+      const child = spawn(process.execPath, [fileURLToPath(new URL('../../solver/cli/placode.mjs', import.meta.url)), 'view', '--port', '0'], { stdio: ['ignore', 'pipe', 'pipe'] });
+      // the line that names the address (the page may be built first)
+      const url = await new Promise<string>((resolve, reject) => {
+        let out = '';
+        child.stdout.on('data', (c) => { out += c; const m = /Placode viewer at (http:\/\/127\.0\.0\.1:\d+\/)/.exec(out); if (m) resolve(m[1]); });
+        child.on('exit', (code) => reject(new Error(`placode view exited (${code}) before serving`)));
+      });
+      const viewPort = Number(new URL(url).port);
+      // a browser's open keep-alive connection must not hold the process
+      const held = await new Promise<number>((resolve, reject) => {
+        const req = request({ host: '127.0.0.1', port: viewPort, path: '/', headers: { connection: 'keep-alive' }, agent: new Agent({ keepAlive: true }) }, (res) => { res.resume(); resolve(res.statusCode ?? 0); });
+        req.on('error', reject);
+        req.end();
+      });
+      expect(held).toBe(200);
+      const sent = performance.now();
+      const exited = new Promise<number>((resolve) => child.on('exit', () => resolve(performance.now() - sent)));
+      child.kill(signal);
+      expect(await exited).toBeLessThan(1000);
+      const refused = await new Promise<string>((resolve) => {
+        const req = request({ host: '127.0.0.1', port: viewPort, path: '/' }, () => resolve('answered'));
+        req.on('error', (e: NodeJS.ErrnoException) => resolve(e.code ?? 'error'));
+        req.end();
+      });
+      expect(refused).toBe('ECONNREFUSED');
+    }, 120_000);
+  }
 });
