@@ -361,6 +361,18 @@ describe.skipIf(!haveChromium)('the viewer in Chromium (software WebGL)', () => 
     expect(after.vertices).toBe(before.vertices);
     expect(after.step).toBe(before.step);
     expect(after.loaded).toBe(true);
+    // a number field holding words: flagged at the field, written as the words (never .nan), refused by name
+    await page.fill('[data-diffusion="v"]', '1e-5');
+    await page.selectOption('#growth-law', 'uniform');
+    await page.fill('#growth-rate', 'fast');
+    expect(await page.getAttribute('#growth-rate', 'class')).toMatch(/invalid/);
+    expect(await page.textContent('#formula-messages')).toContain('growth rate: a number, not "fast"');
+    const yaml = await page.inputValue('#scenario-text');
+    expect(yaml).not.toMatch(/nan/i);
+    expect(yaml).toMatch(/rate: fast/);
+    await page.click('#setup');
+    await page.waitForFunction(() => /growth\.rate/.test(document.querySelector('#problems')!.textContent ?? ''));
+    expect((await state(page)).vertices).toBe(before.vertices);
     await close(page);
   }, 120_000);
 });

@@ -271,7 +271,30 @@ export class ScenarioForm {
     for (const i of this.params.querySelectorAll<HTMLInputElement>('[data-param]')) check(i, `parameter ${i.dataset.param}`, ['x', 'y', 'z']);
     for (const i of this.diffusion.querySelectorAll<HTMLInputElement>('[data-diffusion]')) check(i, `diffusion of ${i.dataset.diffusion}`, [...params, 'x', 'y', 'z']);
     if (this.model.value === CUSTOM && new Set(species).size !== species.length) messages.push('species: each name once');
+    // number fields: flagged where they are, never written as NaN
+    for (const [input, what] of this.numberFields()) {
+      input.classList.remove('invalid');
+      if (input.disabled) continue;
+      const parts = input === this.rates ? input.value.split(',') : [input.value];
+      if (parts.some((t) => !Number.isFinite(Number(t.trim())) || t.trim() === '') || (input === this.rates && parts.length !== 3)) {
+        input.classList.add('invalid');
+        messages.push(`${what}: ${input === this.rates ? 'three numbers, e.g. 0.0002, 0, 0' : `a number, not "${input.value.trim()}"`}`);
+      }
+    }
     this.formulaMessages.replaceChildren(...messages.map((m) => el('p', { class: 'error', text: m })));
+  }
+
+  /** The form's number fields with the words that name them (the time step may be left empty: automatic). */
+  private numberFields(): [HTMLInputElement, string][] {
+    const fields: [HTMLInputElement, string][] = [[this.vertices, 'vertices'], [this.noise, 'noise'], [this.spots, 'spots'], [this.spotRadius, 'spot radius'], [this.end, 'end time'], [this.every, 'frame every'], [this.rate, 'growth rate'], [this.rates, 'growth rates']];
+    if (this.step.value.trim() !== '') fields.push([this.step, 'step']);
+    return fields;
+  }
+
+  /** A number field's value, or its text when it is not a number (the scenario's check then names it; never NaN). */
+  private static number(input: HTMLInputElement): number {
+    const t = input.value.trim();
+    return (t !== '' && Number.isFinite(Number(t)) ? Number(t) : t) as number;
   }
 
   /** Number if the text is one, else the text (a formula). */
@@ -282,14 +305,15 @@ export class ScenarioForm {
 
   /** The scenario the form describes, as YAML. */
   write(): string {
-    const sc: Scenario = { name: 'viewer', seed: Number(this.seed.value) || 0, mesh: {}, kinetics: {}, time: { end: Number(this.end.value) } } as Scenario;
+    const num = ScenarioForm.number;
+    const sc: Scenario = { name: 'viewer', seed: Number(this.seed.value) || 0, mesh: {}, kinetics: {}, time: { end: num(this.end) } } as Scenario;
     if (this.source.value === 'built-in shape') {
       const params: Record<string, number> = {};
       for (const i of this.shapeParams.querySelectorAll<HTMLInputElement>('[data-param]')) {
         const def = SHAPES[this.shape.value]?.parameters[i.dataset.param!];
         if (def && Number(i.value) !== def.default) params[i.dataset.param!] = Number(i.value);
       }
-      sc.mesh = { shape: this.shape.value, ...(Object.keys(params).length ? { params } : {}), vertices: Math.round(Number(this.vertices.value)) };
+      sc.mesh = { shape: this.shape.value, ...(Object.keys(params).length ? { params } : {}), vertices: Number.isFinite(Number(this.vertices.value)) ? Math.round(Number(this.vertices.value)) : num(this.vertices) };
     } else {
       sc.mesh = { file: this.mesh?.name ?? 'open-a-mesh-file.ply' };
     }
@@ -310,18 +334,18 @@ export class ScenarioForm {
     }
     if (Object.keys(diffusion).length) sc.diffusion = diffusion;
     const initial: NonNullable<Scenario['initial']> = { values: 'steady' };
-    const noise = Number(this.noise.value);
-    if (noise > 0) initial.noise = noise;
+    const noise = num(this.noise);
+    if (typeof noise !== 'number' || noise > 0) initial.noise = noise;
     const count = Math.round(Number(this.spots.value));
     const values: Record<string, number> = {};
     this.species().forEach((s, k) => { const v = this.spotValuesBySpecies()[k]; if (v !== null) values[s] = v; });
-    if (count > 0 && Object.keys(values).length) initial.spots = { count, radius: Number(this.spotRadius.value), values };
+    if (count > 0 && Object.keys(values).length) initial.spots = { count, radius: num(this.spotRadius), values };
     sc.initial = initial;
-    sc.time = { scheme: this.scheme.value as 'imex' | 'explicit', ...(this.step.value.trim() ? { step: Number(this.step.value) } : {}), end: Number(this.end.value) };
-    sc.output = { every: Number(this.every.value), colour: m?.display ?? this.species()[this.species().length - 1] };
+    sc.time = { scheme: this.scheme.value as 'imex' | 'explicit', ...(this.step.value.trim() ? { step: num(this.step) } : {}), end: num(this.end) };
+    sc.output = { every: num(this.every), colour: m?.display ?? this.species()[this.species().length - 1] };
     const law = this.law.value;
-    if (law === 'uniform') sc.growth = { law: 'uniform', rate: Number(this.rate.value) };
-    if (law === 'anisotropic') sc.growth = { law: 'anisotropic', rates: this.rates.value.split(',').map((s) => Number(s.trim())) as [number, number, number] };
+    if (law === 'uniform') sc.growth = { law: 'uniform', rate: num(this.rate) };
+    if (law === 'anisotropic') sc.growth = { law: 'anisotropic', rates: this.rates.value.split(',').map((t) => (Number.isFinite(Number(t.trim())) && t.trim() !== '' ? Number(t.trim()) : t.trim())) as unknown as [number, number, number] };
     if (sc.growth && this.refine.checked) sc.growth.refine = { edgeGrowth: 1.6 };
     return `# written by the Placode viewer; run it with: placode run scenario.yaml --out DIR\n${stringify(sc)}`;
   }
