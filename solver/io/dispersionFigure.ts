@@ -1,5 +1,5 @@
 import { plotFrame, polyline } from './plotAxes.ts';
-import { FIGURE_TYPE, svgText } from './figureType.ts';
+import { FIGURE_TYPE, svgText, typeset } from './figureType.ts';
 
 export interface DispersionMark {
   /** a surface eigenvalue cluster: its mean, multiplicity and growth rate */
@@ -23,7 +23,7 @@ export interface DispersionFigureSpec {
   dpi: number;
 }
 
-const round = (v: number) => String(Number(v.toPrecision(4))).replace(/-/g, '−');
+const round = (v: number) => typeset(String(Number(v.toPrecision(4))));
 
 /**
  * The dispersion relation as a figure: the growth rate Re σ(k²) of the

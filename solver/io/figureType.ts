@@ -37,6 +37,9 @@ export function textWidthEm(text: string): number {
   return w;
 }
 
+/** Text as type sets it: the minus sign (U+2212), not a hyphen, in every number a figure shows. */
+export const typeset = (s: string) => s.replace(/-/g, '−');
+
 export const escapeXml = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
 
 /** Split `k^{2}`, `D_{u}`, `k^2`, `D_u` into runs of normal, superscript and subscript text. */

@@ -1,5 +1,5 @@
 import { niceTicks, tickLabel } from './surfaceView.ts';
-import { FIGURE_FONT_FAMILY, FIGURE_TYPE, svgText, textWidthEm } from './figureType.ts';
+import { FIGURE_FONT_FAMILY, FIGURE_TYPE, svgText, textWidthEm, typeset } from './figureType.ts';
 
 export interface PlotAxis {
   min: number;
@@ -28,8 +28,8 @@ export interface PlotFrame {
   axes(): string[];
 }
 
-/** A number as type sets it: the minus sign, not a hyphen. */
-export const typesetNumber = (v: number) => tickLabel(v).replace(/-/g, '−');
+/** A tick's number as type sets it. */
+export const typesetNumber = (v: number) => typeset(tickLabel(v));
 
 /**
  * The frame of a line plot in the figures' type (sizes in points, `dpi` sets

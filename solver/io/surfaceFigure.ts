@@ -3,7 +3,7 @@ import { colorizeField, colormapTable, type ColormapName } from './colormap.ts';
 import { projectSurface, fitScale, niceTicks, tickLabel } from './surfaceView.ts';
 import { rasterSurfaces, SHADING_AMBIENT, type Shading } from './surfaceRaster.ts';
 import { encodePng, base64 } from './encodePng.ts';
-import { FIGURE_FONT_FAMILY, FIGURE_TYPE, textWidthEm, svgText } from './figureType.ts';
+import { FIGURE_FONT_FAMILY, FIGURE_TYPE, textWidthEm, svgText, typeset } from './figureType.ts';
 
 export interface FigurePanel {
   /** the surface and its values; without them the cell is left blank (a sweep's unfinished run) */
@@ -55,9 +55,6 @@ function panelRange(spec: FigureSpec): [number, number] {
   if (!(lo <= hi)) lo = hi = 0;
   return hi > lo ? [lo, hi] : [lo - 0.5, lo + 0.5];
 }
-
-/** A number as type sets it: the minus sign, not a hyphen. */
-const typeset = (s: string) => s.replace(/-/g, '−');
 
 /** An end value of the colour bar: four significant figures. */
 function endLabel(v: number): string {
