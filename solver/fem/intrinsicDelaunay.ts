@@ -1,5 +1,6 @@
 import type { Mesh } from '../mesh/Mesh.ts';
 import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
+import { areaFromSides } from '../mesh/triangleAreas.ts';
 
 /**
  * An intrinsic triangulation of a mesh's surface: the same vertices, triangles
@@ -13,15 +14,6 @@ export interface IntrinsicTriangulation {
   lengths: Float64Array;
   /** edges flipped to reach the Delaunay condition */
   flips: number;
-}
-
-/** Area of a triangle from its side lengths: Heron's formula in Kahan's stable form (sides sorted). */
-function heron(a: number, b: number, c: number): number {
-  if (a < b) [a, b] = [b, a];
-  if (b < c) [b, c] = [c, b];
-  if (a < b) [a, b] = [b, a];
-  const s = (a + (b + c)) * (c - (a - b)) * (c + (a - b)) * (a + (b - c));
-  return s > 0 ? 0.25 * Math.sqrt(s) : 0;
 }
 
 /**
@@ -55,7 +47,7 @@ export function intrinsicDelaunay(mesh: Mesh): IntrinsicTriangulation {
   // cot of the angle opposite halfedge h in its triangle, ×4·area (sign is what matters for Delaunay)
   const cotOpposite = (h: number) => {
     const a = L[h], b = L[next(h)], c = L[prev(h)];
-    const area = heron(a, b, c);
+    const area = areaFromSides(a, b, c);
     return area > 0 ? (b * b + c * c - a * a) / (4 * area) : -Infinity;
   };
   const queued = new Uint8Array(nH);
@@ -117,7 +109,7 @@ export function intrinsicDelaunayOperators(mesh: Mesh): { stiffness: CsrMatrix; 
   for (let f = 0; f < nH / 3; f++) {
     const h0 = 3 * f;
     const a = L[h0], b = L[h0 + 1], c = L[h0 + 2];
-    const area = heron(a, b, c);
+    const area = areaFromSides(a, b, c);
     for (let k = 0; k < 3; k++) mass[V[h0 + k]] += area / 3;
     if (!(area > 0)) continue;
     const len = [a, b, c];

@@ -3,6 +3,7 @@ import { cotanStiffness } from './cotanStiffness.ts';
 import { lumpedMass } from './lumpedMass.ts';
 import { EXPLICIT_STEP_RATIO_WARNING, SLIVER_ANGLE_DEGREES } from '../defaults.ts';
 import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
+import { areaFromSides } from '../mesh/triangleAreas.ts';
 
 export interface MeshQuality {
   /** interior angles of every triangle, degrees: the smallest, the 1st percentile, the largest */
@@ -44,7 +45,7 @@ export function meshQuality(mesh: Mesh, worstCount = 5, operators?: { stiffness:
     const la = Math.hypot(p[3 * b] - p[3 * c], p[3 * b + 1] - p[3 * c + 1], p[3 * b + 2] - p[3 * c + 2]);
     const lb = Math.hypot(p[3 * a] - p[3 * c], p[3 * a + 1] - p[3 * c + 1], p[3 * a + 2] - p[3 * c + 2]);
     const lc = Math.hypot(p[3 * a] - p[3 * b], p[3 * a + 1] - p[3 * b + 1], p[3 * a + 2] - p[3 * b + 2]);
-    // angles from the side lengths (law of cosines, clamped), area by Heron's formula in its stable form
+    // angles from the side lengths (law of cosines, clamped), area from them too
     const angle = (x: number, y: number, z: number) => (180 / Math.PI) * Math.acos(Math.max(-1, Math.min(1, (y * y + z * z - x * x) / (2 * y * z || 1))));
     const A = angle(la, lb, lc), B = angle(lb, la, lc), C = 180 - A - B;
     angles[3 * f] = A; angles[3 * f + 1] = B; angles[3 * f + 2] = C;
@@ -53,8 +54,7 @@ export function meshQuality(mesh: Mesh, worstCount = 5, operators?: { stiffness:
     sumMin += lo;
     if (hi > 90) obtuse++;
     if (lo < SLIVER_ANGLE_DEGREES) slivers++;
-    const [x, y, z] = [la, lb, lc].sort((u, v) => v - u);
-    const s = Math.sqrt(Math.max(0, (x + (y + z)) * (z - (x - y)) * (z + (x - y)) * (x + (y - z)))) / 4; // area
+    const s = areaFromSides(la, lb, lc);
     area += s;
     const semi = (la + lb + lc) / 2;
     const r = semi > 0 ? s / semi : 0, R = s > 0 ? (la * lb * lc) / (4 * s) : Infinity;

@@ -21,6 +21,15 @@ export function triangleAreas(mesh: Mesh, out?: Float64Array): Float64Array {
   return areas;
 }
 
+/** Area of a triangle from its side lengths: Heron's formula in Kahan's stable form (sides sorted), 0 when degenerate. */
+export function areaFromSides(a: number, b: number, c: number): number {
+  if (a < b) [a, b] = [b, a];
+  if (b < c) [b, c] = [c, b];
+  if (a < b) [a, b] = [b, a];
+  const s = (a + (b + c)) * (c - (a - b)) * (c + (a - b)) * (a + (b - c));
+  return s > 0 ? 0.25 * Math.sqrt(s) : 0;
+}
+
 /** Total area of the triangle mesh (the discrete surface, not a smooth one). */
 export function meshArea(mesh: Mesh): number {
   const areas = triangleAreas(mesh);
