@@ -1,6 +1,5 @@
-import { BufferAttribute, BufferGeometry, Vector3 } from 'three';
-import { MeshBVH } from 'three-mesh-bvh';
 import type { Mesh } from '../mesh/Mesh.ts';
+import { SurfaceProjector } from '../mesh/surfaceProjector.ts';
 import { symmetricEigen } from '../linalg/symmetricEigen.ts';
 
 export type Alignment = 'none' | 'rigid' | 'similarity';
@@ -27,22 +26,16 @@ export interface SurfaceMap {
  * listed, so the caller can refuse a map that folds.
  */
 export function mapOntoSurface(source: Mesh, target: Mesh, alignment: Alignment = 'none', rounds = 30): SurfaceMap {
-  const geometry = new BufferGeometry();
-  geometry.setAttribute('position', new BufferAttribute(Float32Array.from(target.positions), 3));
-  geometry.setIndex(new BufferAttribute(Uint32Array.from(target.triangles), 1));
-  const bvh = new MeshBVH(geometry);
+  const projector = new SurfaceProjector(target);
   const n = source.positions.length / 3;
   const p = Float64Array.from(source.positions);
   const closest = new Float64Array(3 * n);
-  const hit = { point: new Vector3(), distance: 0, faceIndex: 0 };
-  const v = new Vector3();
   const project = (from: Float64Array) => {
     let far = 0;
+    closest.set(from);
     for (let i = 0; i < n; i++) {
-      v.set(from[3 * i], from[3 * i + 1], from[3 * i + 2]);
-      bvh.closestPointToPoint(v, hit);
-      closest[3 * i] = hit.point.x; closest[3 * i + 1] = hit.point.y; closest[3 * i + 2] = hit.point.z;
-      far = Math.max(far, hit.distance);
+      projector.project(closest, i);
+      far = Math.max(far, projector.distance);
     }
     return far;
   };
