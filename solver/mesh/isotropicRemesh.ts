@@ -1,6 +1,7 @@
 import { makeMesh, type Mesh } from './Mesh.ts';
 import { meshArea } from './triangleAreas.ts';
 import { SurfaceProjector } from './surfaceProjector.ts';
+import { edgeLengthStats } from './edgeLengthStats.ts';
 
 export interface RemeshOptions {
   /** target edge length (default: from `vertices`, else the input's mean edge) */
@@ -81,10 +82,17 @@ function adjacency(tris: number[], nV: number, ev: number[], ef: number[]) {
 const dist = (p: number[], a: number, b: number) => Math.hypot(p[3 * a] - p[3 * b], p[3 * a + 1] - p[3 * b + 1], p[3 * a + 2] - p[3 * b + 2]);
 
 function normalOf(p: number[], a: number, b: number, c: number, over?: { v: number; x: number; y: number; z: number }): [number, number, number] {
-  const P = (v: number, d: number) => (over && v === over.v ? [over.x, over.y, over.z][d] : p[3 * v + d]);
+  const P = (v: number, d: number) => (over && v === over.v ? (d === 0 ? over.x : d === 1 ? over.y : over.z) : p[3 * v + d]);
   const ux = P(b, 0) - P(a, 0), uy = P(b, 1) - P(a, 1), uz = P(b, 2) - P(a, 2);
   const vx = P(c, 0) - P(a, 0), vy = P(c, 1) - P(a, 1), vz = P(c, 2) - P(a, 2);
   return [uy * vz - uz * vy, uz * vx - ux * vz, ux * vy - uy * vx];
+}
+
+/** cot of the angle at corner o of the triangle (x, y, o). */
+function cotAt(p: number[], x: number, y: number, o: number): number {
+  const ux = p[3 * x] - p[3 * o], uy = p[3 * x + 1] - p[3 * o + 1], uz = p[3 * x + 2] - p[3 * o + 2];
+  const vx = p[3 * y] - p[3 * o], vy = p[3 * y + 1] - p[3 * o + 1], vz = p[3 * y + 2] - p[3 * o + 2];
+  return (ux * vx + uy * vy + uz * vz) / (Math.hypot(uy * vz - uz * vy, uz * vx - ux * vz, ux * vy - uy * vx) || 1e-300);
 }
 
 /** Split every edge longer than `hi` at its midpoint (each triangle by the pattern of its split edges). */
@@ -131,7 +139,7 @@ function splitLong(p: number[], tris: number[], hi: number): { tris: number[]; s
 /** Collapse edges shorter than `lo` (an independent set), keeping boundaries, topology and orientation. */
 function collapseShort(p: number[], tris: number[], lo: number, hi: number, cosCrease: number): { tris: number[]; collapses: number } {
   const nV = p.length / 3;
-  const { map, ev, ef, key } = edgesOf(tris, nV);
+  const { ev, ef } = edgesOf(tris, nV);
   const { offsets, nb, boundary: open, faceOffsets, vf } = adjacency(tris, nV, ev, ef);
   // boundary and crease vertices stay put, and only edges along them may take one into another
   const crease = creases(p, tris, ev, ef, cosCrease);
@@ -201,7 +209,6 @@ function collapseShort(p: number[], tris: number[], lo: number, hi: number, cosC
     locked[b] = 1;
     collapses++;
   }
-  void map; void key;
   if (!collapses) return { tris, collapses };
   const out: number[] = [];
   for (let f = 0; f < tris.length / 3; f++) {
@@ -235,17 +242,13 @@ function flipEdges(p: number[], tris: number[], criterion: 'valence' | 'delaunay
     const c = [0, 1, 2].map((k) => tris[3 * f0 + k]).find((v) => v !== a && v !== b)!;
     const d = [0, 1, 2].map((k) => tris[3 * f1 + k]).find((v) => v !== a && v !== b)!;
     if (c === d || map.has(key(c, d))) continue;
-    const dev = (x: number, y: number, z: number, w: number) => Math.abs(x - target(a)) + Math.abs(y - target(b)) + Math.abs(z - target(c)) + Math.abs(w - target(d));
     if (criterion === 'valence') {
-      if (dev(valence[a] - 1, valence[b] - 1, valence[c] + 1, valence[d] + 1) >= dev(valence[a], valence[b], valence[c], valence[d])) continue;
-    } else {
-      // Delaunay: flip where the angles opposite the edge sum to more than π (cot α + cot β < 0)
-      const cot = (x: number, y: number, o: number) => {
-        const ux = p[3 * x] - p[3 * o], uy = p[3 * x + 1] - p[3 * o + 1], uz = p[3 * x + 2] - p[3 * o + 2];
-        const vx = p[3 * y] - p[3 * o], vy = p[3 * y + 1] - p[3 * o + 1], vz = p[3 * y + 2] - p[3 * o + 2];
-        return (ux * vx + uy * vy + uz * vz) / (Math.hypot(uy * vz - uz * vy, uz * vx - ux * vz, ux * vy - uy * vx) || 1e-300);
-      };
-      if (cot(a, b, c) + cot(a, b, d) >= -1e-9) continue;
+      // the four valences' distance from their targets, before and after the flip
+      const before = Math.abs(valence[a] - target(a)) + Math.abs(valence[b] - target(b)) + Math.abs(valence[c] - target(c)) + Math.abs(valence[d] - target(d));
+      const after = Math.abs(valence[a] - 1 - target(a)) + Math.abs(valence[b] - 1 - target(b)) + Math.abs(valence[c] + 1 - target(c)) + Math.abs(valence[d] + 1 - target(d));
+      if (after >= before) continue;
+    } else if (cotAt(p, a, b, c) + cotAt(p, a, b, d) >= -1e-9) {
+      continue; // Delaunay already: the angles opposite the edge sum to at most π (cot α + cot β ≥ 0)
     }
     if (valence[a] <= 3 || valence[b] <= 3) continue;
     // the two new triangles must face as the old ones did
@@ -269,7 +272,7 @@ function flipEdges(p: number[], tris: number[], criterion: 'valence' | 'delaunay
  */
 function removeValence3(p: number[], tris: number[], cosCrease: number): { tris: number[]; removed: number } {
   const nV = p.length / 3;
-  const { map, ev, ef, key } = edgesOf(tris, nV);
+  const { ev, ef } = edgesOf(tris, nV);
   const { offsets, nb, boundary, faceOffsets, vf } = adjacency(tris, nV, ev, ef);
   const crease = creases(p, tris, ev, ef, cosCrease);
   const gone = new Uint8Array(tris.length / 3);
@@ -298,7 +301,6 @@ function removeValence3(p: number[], tris: number[], cosCrease: number): { tris:
     for (const w of ring) locked[w] = 1;
     removed++;
   }
-  void map; void key;
   if (!removed) return { tris, removed };
   const out: number[] = [];
   for (let f = 0; f < tris.length / 3; f++) if (!gone[f]) out.push(tris[3 * f], tris[3 * f + 1], tris[3 * f + 2]);
@@ -366,15 +368,7 @@ export function isotropicRemesh(input: Mesh, options: RemeshOptions = {}): Remes
   const area = meshArea(input);
   let h = options.edge;
   if (h === undefined && options.vertices !== undefined) h = Math.sqrt((2 * area) / (Math.sqrt(3) * options.vertices));
-  if (h === undefined) {
-    let s = 0;
-    const t = input.triangles, p = input.positions;
-    for (let f = 0; f < t.length / 3; f++) for (let k = 0; k < 3; k++) {
-      const a = t[3 * f + k], b = t[3 * f + ((k + 1) % 3)];
-      s += Math.hypot(p[3 * a] - p[3 * b], p[3 * a + 1] - p[3 * b + 1], p[3 * a + 2] - p[3 * b + 2]);
-    }
-    h = s / t.length;
-  }
+  h ??= edgeLengthStats(input).mean;
   if (!(h > 0) || !Number.isFinite(h)) throw new Error(`remesh: the target edge length must be a positive number, got ${h}`);
   const hi = (4 / 3) * h, lo = (4 / 5) * h;
   // creases only when asked for: a scan's terraces fold as sharply as a real crease, and must go
