@@ -56,13 +56,12 @@ export function measurePattern(mesh: Mesh, field: ArrayLike<number>, mass: Float
   }
   const needed = Math.max(floor.absolute, floor.relative * Math.max(Math.abs(lo), Math.abs(hi)));
   const dominant = eig ? modeSpectrum(field, mass, eig).dominant : null;
+  const midRange = 0.5 * (lo + hi);
   if (!(contrast > needed)) {
-    const threshold = typeof rule === 'number' ? rule : 0.5 * (lo + hi);
-    return { threshold, patches: [], labels: new Int32Array(field.length).fill(-1), dominant, contrast, floor: needed };
+    return { threshold: typeof rule === 'number' ? rule : midRange, patches: [], labels: new Int32Array(field.length).fill(-1), dominant, contrast, floor: needed };
   }
-  let threshold: number | undefined;
-  if (rule === 'otsu') threshold = otsuThreshold(field, mass);
-  else if (typeof rule === 'number') threshold = rule;
+  // (the mid-range from the extremes already found, not a second pass)
+  const threshold = rule === 'otsu' ? otsuThreshold(field, mass) : typeof rule === 'number' ? rule : midRange;
   const c = thresholdComponents(mesh, field, threshold, mass, neighbours);
   return { threshold: c.threshold, patches: c.patches, labels: c.label, dominant, contrast, floor: needed };
 }
