@@ -91,8 +91,7 @@ export function resolveInitial(ctx: ResolveContext, kin: KineticsPlan, fields: F
   const rand = seededRandom(seed);
   if (init.spots) addSpots(ctx, init.spots, species, mesh, initial, rand);
   if (init.noise !== undefined) {
-    const amp = typeof init.noise === 'number' ? init.noise : init.noise.amplitude;
-    const which = typeof init.noise === 'number' || !init.noise.species ? species : init.noise.species;
+    const { amplitude: amp, species: which } = noiseTargets(init.noise, species);
     for (const name of which) if (!species.includes(name)) problems.add(['initial', 'noise', 'species'], `"${name}" is not a species (${species.join(', ')})`);
     const idx = which.map((name) => species.indexOf(name)).filter((s) => s >= 0);
     for (let i = 0; i < n; i++) for (const s of idx) initial[i * nS + s] += amp * (2 * rand() - 1);
@@ -144,3 +143,8 @@ function addSpots(ctx: ResolveContext, sp: Spots, species: readonly string[], me
 
 /** The problem of your own kinetics started at "steady" (found early with the other requirements, again here). */
 export const ownKineticsStart = (species: readonly string[]) => `your own kinetics has no closed-form steady state here: give a starting value per species (values: {${species.map((s) => `${s}: 1`).join(', ')}})`;
+
+/** The starting noise's amplitude and the species it goes on (all of them unless the scenario names some). */
+export function noiseTargets(noise: number | { amplitude: number; species?: string[] }, species: readonly string[]): { amplitude: number; species: readonly string[] } {
+  return typeof noise === 'number' ? { amplitude: noise, species } : { amplitude: noise.amplitude, species: noise.species ?? species };
+}

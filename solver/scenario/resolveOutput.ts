@@ -3,6 +3,7 @@ import type { AnalysisPlan, OutputPlan } from './ResolvedScenario.ts';
 import type { KineticsPlan } from './resolveKinetics.ts';
 import type { TimePlan } from './resolveTime.ts';
 import { COLORMAP_NAMES, type ColormapName } from '../io/colormap.ts';
+import { noiseTargets } from './resolveInitial.ts';
 import { AUTO_SPECTRUM_MODES, AUTO_SPECTRUM_VERTICES, DEFAULT_COLORMAP, DEFAULT_THRESHOLD_RULE, OUTPUTS_PER_RUN, PATTERN_NOISE_FACTOR, PATTERN_RELATIVE_FLOOR } from '../defaults.ts';
 
 /** What is painted and measured: checked before the mesh is built. */
@@ -58,6 +59,6 @@ export function resolveOutputPlan(ctx: ResolveContext, painting: Painting, time:
 /** The amplitude of the starting noise on one species (0 when it has none). */
 function noiseOn(noise: number | { amplitude: number; species?: string[] } | undefined, species: string): number {
   if (noise === undefined) return 0;
-  if (typeof noise === 'number') return noise;
-  return !noise.species || noise.species.includes(species) ? noise.amplitude : 0;
+  const targets = noiseTargets(noise, [species]);
+  return targets.species.includes(species) ? targets.amplitude : 0;
 }
