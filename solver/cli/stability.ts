@@ -77,7 +77,7 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
   }
   if (o.plot) {
     if (!report.jacobian) throw new UsageError('--plot: no steady state to analyse, so no dispersion relation to draw');
-    writeFileAtomic(o.plot, dispersionPlot(r.name, r.model, r.units, report, eigenpairs, o), o.force);
+    writePlot(o.plot, o, (size) => dispersionPlot(r.name, r.model, r.units, report, eigenpairs, o, size));
   }
   let growth: BandCourse | null = null;
   if (r.growth && report.turing?.band && Number.isFinite(report.turing.band[1])) {
@@ -89,9 +89,8 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
     throw new UsageError(r.growth ? '--growth-plot: the analysed state has no finite unstable band to follow' : '--growth-plot: the scenario has no growth section');
   }
   if (o.growthPlot && growth) {
-    const width = o.width ?? FIGURE_SIZE.width, height = o.height ?? Math.round(FIGURE_SIZE.width * 0.62), dpi = o.dpi ?? FIGURE_SIZE.dpi;
-    const svg = bandCourseFigureSvg(growth, { y: o.plotX, units: r.units, title: `${r.name}: the band through growth`, width, height, dpi });
-    writeFileAtomic(o.growthPlot, o.growthPlot.toLowerCase().endsWith('.png') ? svgToPng(svg, width, dpi) : svg, o.force);
+    const course = growth;
+    writePlot(o.growthPlot, o, (size) => bandCourseFigureSvg(course, { y: o.plotX, units: r.units, title: `${r.name}: the band through growth`, ...size }));
   }
   const files = [...(o.paint ? [o.paint] : []), ...mapFiles, ...(o.plot ? [o.plot] : []), ...(o.growthPlot ? [o.growthPlot] : [])];
   const growthData = growth && { method: growth.method, end: growth.end, notes: growth.notes, clusters: growth.clusters.map(({ eigenvalues: _, ...c }) => c) };
@@ -150,16 +149,21 @@ export function runStability(file: string, o: StabilityOptions, out: (s: string)
   for (const f of files) out(`  wrote ${f}\n`);
 }
 
+/** A plot's size (the options', else the figures' width at a 0.62 aspect) drawn by `draw` and written as SVG, or PNG rendered from it. */
+function writePlot(file: string, o: StabilityOptions, draw: (size: { width: number; height: number; dpi: number }) => string): void {
+  const size = { width: o.width ?? FIGURE_SIZE.width, height: o.height ?? Math.round(FIGURE_SIZE.width * 0.62), dpi: o.dpi ?? FIGURE_SIZE.dpi };
+  const svg = draw(size);
+  writeFileAtomic(file, file.toLowerCase().endsWith('.png') ? svgToPng(svg, size.width, size.dpi) : svg, o.force);
+}
+
 /** The dispersion figure of a report: the curve, the band, every computed surface eigenvalue cluster on it. */
-function dispersionPlot(name: string, model: string, units: string | undefined, report: ReturnType<typeof stabilityReport>, eigenpairs: Eigenpairs | null, o: StabilityOptions): Uint8Array | string {
+function dispersionPlot(name: string, model: string, units: string | undefined, report: ReturnType<typeof stabilityReport>, eigenpairs: Eigenpairs | null, o: StabilityOptions, size: { width: number; height: number; dpi: number }): string {
   const J = report.jacobian!.flat();
   const D = Object.values(report.diffusion);
   const marks = (eigenpairs?.clusters ?? []).map((c) => ({ eigenvalue: c.mean, multiplicity: c.size, rate: growthRate(J, D, c.mean) }));
-  const width = o.width ?? FIGURE_SIZE.width, height = o.height ?? Math.round(FIGURE_SIZE.width * 0.62), dpi = o.dpi ?? FIGURE_SIZE.dpi;
-  const svg = dispersionFigureSvg({
+  return dispersionFigureSvg({
     dispersion: report.dispersion, band: report.turing?.band ?? null, marks,
     predicted: report.predicted ? { eigenvalue: report.predicted.eigenvalue, multiplicity: report.predicted.multiplicity, rate: report.predicted.rate } : null,
-    x: o.plotX, units, title: `${name}: ${model}, steady state ${report.state}`, width, height, dpi,
+    x: o.plotX, units, title: `${name}: ${model}, steady state ${report.state}`, ...size,
   });
-  return o.plot!.toLowerCase().endsWith('.png') ? svgToPng(svg, width, dpi) : svg;
 }
