@@ -4,7 +4,7 @@ import type { Browser, Page } from 'playwright-core';
 /** What the page exposes as window.__placode (see viewer/src/app.ts). */
 export interface AppState {
   ready: boolean; loaded: boolean; running: boolean; step: number; time: number; vertices: number; frames: number; view: string; problems: string[]; messages: string[];
-  shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number } | null;
+  shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number; time: number } | null;
   serverRun: { name: string; frames: number } | null;
   strokes: number;
   stepsPerSecond: number;

@@ -46,8 +46,8 @@ interface AppState {
   problems: string[];
   messages: string[];
   stability: StabilityView | null;
-  /** min, mean and max of the painted field as shown */
-  shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number } | null;
+  /** min, mean and max of the painted field as shown, and the time of the frame painted */
+  shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number; time: number } | null;
   stepsPerSecond: number;
   serverRun: { name: string; frames: number } | null;
   /** milliseconds of the last brush dab (picking and gathering vertices; the BVH is built on the first) */
@@ -202,7 +202,7 @@ function paint() {
   let sum = 0;
   for (let i = 0; i < p.values.length; i++) sum += p.values[i];
   if (shownExtent.positions !== frame.mesh.positions) shownExtent = { positions: frame.mesh.positions, value: extent(frame.mesh.positions) };
-  app.shown = { species: p.label, min: p.own[0], mean: sum / p.values.length, max: p.own[1], vertices: frame.mesh.positions.length / 3, extent: shownExtent.value };
+  app.shown = { species: p.label, min: p.own[0], mean: sum / p.values.length, max: p.own[1], vertices: frame.mesh.positions.length / 3, extent: shownExtent.value, time: frame.time };
   byId('view-caption').textContent = p.showMode ? `eigenmode ${mode!.index}, λ = ${fmt(mode!.eigenvalue)}` : `${timelineSource === 'server' && app.view === 'frame' ? 'recorded run' : app.view === 'frame' ? 'timeline' : 'live'} · t = ${fmt(frame.time)}`;
 }
 
