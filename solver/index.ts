@@ -53,7 +53,10 @@ export type { GrowthLaw } from './growth/GrowthLaw.ts';
 export { affineGrowth } from './growth/affineGrowth.ts';
 export { normalGrowth } from './growth/normalGrowth.ts';
 export { keyframeGrowth } from './growth/keyframeGrowth.ts';
-export { mapOntoSurface } from './growth/mapOntoSurface.ts';
+export { mapOntoSurface, locateOnSurface, type SurfaceMap, type SurfaceMapOptions, type StageLandmark } from './growth/mapOntoSurface.ts';
+export { mapDistortion, type MapDistortion } from './growth/mapDistortion.ts';
+export { stageMapReport, formatStageMap, type StageMapReport } from './growth/stageMapReport.ts';
+export { SurfaceProjector } from './mesh/surfaceProjector.ts';
 
 // ---- scenarios and the run loop
 export type { Scenario } from './scenario/Scenario.ts';

@@ -13,9 +13,10 @@ import { registerFigure } from './commands/figure.ts';
 import { registerRun } from './commands/run.ts';
 import { registerView } from './commands/view.ts';
 import { registerSweep } from './commands/sweep.ts';
+import { registerStages } from './commands/stages.ts';
 
 /** Every command, in the order `placode --help` lists them. */
-const COMMANDS: RegisterCommand[] = [registerShapes, registerMesh, registerModes, registerDemo, registerModels, registerStability, registerExport, registerFigure, registerRun, registerView, registerSweep];
+const COMMANDS: RegisterCommand[] = [registerShapes, registerMesh, registerStages, registerModes, registerDemo, registerModels, registerStability, registerExport, registerFigure, registerRun, registerView, registerSweep];
 
 /**
  * Run the command line; returns the exit code. Never throws: an error is one

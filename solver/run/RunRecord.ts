@@ -1,3 +1,4 @@
+import type { StageMapReport } from '../growth/stageMapReport.ts';
 import type { ResolvedScenario } from '../scenario/ResolvedScenario.ts';
 import { meshArea } from '../mesh/triangleAreas.ts';
 import { PATTERN_NOISE_FACTOR } from '../defaults.ts';
@@ -73,7 +74,7 @@ export interface RunRecord {
   analysis: RunAnalysis;
   /** threads asked for and used (a mesh too small for them uses fewer; results do not depend on it) */
   threads?: { requested: number; used: number };
-  growth?: { description: string; tolerance: number; updates: number; refinements: { time: number; step: number; from: number; to: number }[] };
+  growth?: { description: string; tolerance: number; updates: number; refinements: { time: number; step: number; from: number; to: number }[]; stages?: StageMapReport[] };
   performance?: { steps: number; steppingSeconds: number; stepsPerSecond: number; vertexStepsPerSecond: number; solverIterationsPerStep?: number; stepperBytesPerVertex: number };
 }
 

@@ -36,7 +36,7 @@ export function loadScenarioFile(file: string): { text: string; resolved: Resolv
 /** Check a scenario and return its resolved plan (what `run` would do), without running it. */
 export function checkScenario(file: string): Record<string, unknown> {
   const r = loadScenarioFile(file).resolved;
-  return { ...r.summary, vertices: r.mesh.positions.length / 3, warnings: r.warnings, meshNotes: r.meshNotes };
+  return { ...r.summary, vertices: r.mesh.positions.length / 3, warnings: r.warnings, meshNotes: r.meshNotes, ...(r.growth?.stages ? { stages: r.growth.stages } : {}) };
 }
 
 /**

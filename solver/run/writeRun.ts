@@ -1,3 +1,4 @@
+import { formatStageMap } from '../growth/stageMapReport.ts';
 import { join } from 'node:path';
 import type { ResolvedScenario } from '../scenario/ResolvedScenario.ts';
 import { writeFileAtomic } from '../io/meshFiles.ts';
@@ -83,7 +84,7 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
   if (team) options.onTeam?.(team);
   const engine = new RunEngine(r, saved, team);
   record.threads = { requested, used: engine.threads };
-  if (r.growth) record.growth ??= { description: r.growth.description, tolerance: r.growth.tolerance, updates: 0, refinements: [] };
+  if (r.growth) record.growth ??= { description: r.growth.description, tolerance: r.growth.tolerance, updates: 0, refinements: [], ...(r.growth.stages ? { stages: r.growth.stages } : {}) };
   const updatesBefore = record.growth?.updates ?? 0;
   const area0 = meshArea(r.mesh);
   let announced = false; // warnings found before the run's first line are printed with the scenario's
@@ -192,6 +193,7 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
   for (const w of record.warnings) log(`warning: ${w}`);
   announced = true;
   for (const note of r.meshNotes) log(`mesh: ${note}`);
+  if (!saved) for (const stage of r.growth?.stages ?? []) log(formatStageMap(stage, r.units));
   log(`${saved ? 'resuming' : 'running'} ${r.name}: ${r.model} on ${engine.vertexCount} vertices, ${r.scheme} dt=${dt}, ${lastStep} steps to t=${lastStep * dt}${saved ? ` from t=${saved.time}` : ''}, ${threadNote(requested, engine.threads)} → ${final}`);
   const progress = makeProgress(options.progress, log, engine.time, lastStep * dt);
   try {

@@ -1,3 +1,4 @@
+import type { StageMapReport } from '../growth/stageMapReport.ts';
 import type { Mesh } from '../mesh/Mesh.ts';
 import type { CsrMatrix } from '../linalg/CsrMatrix.ts';
 import type { FieldValue, MeshSpec } from './Scenario.ts';
@@ -43,6 +44,8 @@ export interface GrowthPlan {
   /** centre of the scaling laws (given, or the area centroid) */
   centre?: [number, number, number];
   refine?: { edgeGrowth: number; maxEdge: number; maxVertices: number };
+  /** keyframes of other connectivity: how each stage was reached */
+  stages?: StageMapReport[];
 }
 
 export interface OutputPlan {

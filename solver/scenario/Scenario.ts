@@ -29,11 +29,13 @@ export interface GrowthSpec {
   /** uniform or anisotropic scaling about a centre, growth along the surface normal, or stage meshes */
   law: 'uniform' | 'anisotropic' | 'normal' | 'keyframes';
   /** keyframes: later stages of the surface, each a mesh file at a time (the run's mesh is the stage at t = 0) */
-  keyframes?: { time: number; file: string }[];
+  keyframes?: { time: number; file: string; landmarks?: Record<string, [number, number, number]> }[];
+  /** keyframes: named points on the start mesh (the base centre, the distal tip…), matched to the points of the same names given with each stage */
+  landmarks?: Record<string, [number, number, number]>;
   /** keyframes: piecewise linear, or C¹ cubic (default) */
   interpolation?: 'linear' | 'cubic';
-  /** keyframes with other connectivity: align each stage to the start first (default none) */
-  align?: 'none' | 'rigid' | 'similarity';
+  /** keyframes with other connectivity: the global map fitted before the smooth registration onto each stage (default affine) */
+  align?: 'none' | 'rigid' | 'similarity' | 'affine';
   /** keyframes with other connectivity: largest tolerated fraction of triangles the map folds or collapses (default 0) */
   maxFolded?: number;
   /** time course of the scale factors (exponential by default) */
@@ -181,6 +183,7 @@ const vertexData = { type: 'object', properties: { vertexData: { type: 'string',
 const fieldValue = { description: 'a number, a formula (text) or {vertexData: NAME}', oneOf: [{ type: 'number' }, formula, vertexData] };
 /** a growth speed or expansion rate: a formula in x, y, z, t, or the mesh's per-vertex data */
 const growthField = { description: 'a formula in x, y, z, t or {vertexData: NAME}', oneOf: [formula, vertexData] };
+const landmarkSet = { type: 'object', description: 'named points {name: [x, y, z]}', additionalProperties: { type: 'array', items: { type: 'number' }, minItems: 3, maxItems: 3 } };
 
 const nameMap = (value: object) => ({ type: 'object', additionalProperties: value, propertyNames: { pattern: '^[A-Za-z][A-Za-z0-9_]*$' } });
 /** a built-in model's parameters may also be named as its table writes them (γ, κ, ε, a₀, r₁) */
@@ -285,10 +288,11 @@ export const SCENARIO_SCHEMA = {
         keyframes: {
           type: 'array',
           minItems: 1,
-          items: { type: 'object', additionalProperties: false, required: ['time', 'file'], properties: { time: { type: 'number', exclusiveMinimum: 0 }, file: { type: 'string', minLength: 1 } } },
+          items: { type: 'object', additionalProperties: false, required: ['time', 'file'], properties: { time: { type: 'number', exclusiveMinimum: 0 }, file: { type: 'string', minLength: 1 }, landmarks: landmarkSet } },
         },
+        landmarks: landmarkSet,
         interpolation: { enum: ['linear', 'cubic'] },
-        align: { enum: ['none', 'rigid', 'similarity'] },
+        align: { enum: ['none', 'rigid', 'similarity', 'affine'] },
         maxFolded: { type: 'number', minimum: 0, maximum: 1 },
         course: { enum: ['exponential', 'linear', 'logistic'] },
         rate: { type: 'number' },

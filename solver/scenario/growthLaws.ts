@@ -5,7 +5,9 @@ import type { GrowthPlan, LoadedMesh, ScenarioEnvironment } from './ResolvedScen
 import { affineGrowth } from '../growth/affineGrowth.ts';
 import { normalGrowth, type VertexSpeed } from '../growth/normalGrowth.ts';
 import { keyframeGrowth } from '../growth/keyframeGrowth.ts';
-import { mapOntoSurface } from '../growth/mapOntoSurface.ts';
+import { locateOnSurface, mapOntoSurface, REGISTRATION_STIFFNESS_LENGTHS } from '../growth/mapOntoSurface.ts';
+import { stageMapReport, type StageMapReport } from '../growth/stageMapReport.ts';
+import { meshArea } from '../mesh/triangleAreas.ts';
 import { compileSpaceTimeFormula } from '../kinetics/surfaceField.ts';
 import { FormulaError } from '../kinetics/FormulaError.ts';
 import { prolongField, type Refinement } from '../mesh/Refinement.ts';
@@ -22,6 +24,8 @@ export interface GrowthLawInput {
   vertexDataOf(name: string, path: (string | number)[]): Float64Array | undefined;
   env: ScenarioEnvironment;
   warnings: string[];
+  /** where a keyframe law puts the report of each stage it maps */
+  stageMaps?: StageMapReport[];
 }
 
 export interface GrowthLawEntry {
@@ -55,7 +59,12 @@ function vertexField(input: GrowthLawInput, key: 'speed' | 'expansion'): ((refin
   };
 }
 
-/** Keyframe stages: same connectivity taken as they are, others carried onto by closest points (refused if that folds). */
+/**
+ * Keyframe stages: same connectivity taken as they are; others reached in a
+ * chain (start → stage 1 → stage 2 …), each by an affine alignment and a
+ * smooth registration onto the next stage (mapOntoSurface), landmarks pinning
+ * what the shapes leave open. A map that still folds is refused, naming where.
+ */
 function keyframeStages(input: GrowthLawInput): GrowthPlan['makeLaw'] | undefined {
   const { g, problems, mesh } = input;
   if (!g.keyframes) {
@@ -64,40 +73,71 @@ function keyframeStages(input: GrowthLawInput): GrowthPlan['makeLaw'] | undefine
   }
   const times = [0];
   const stages: Float64Array[] = [Float64Array.from(mesh.positions)];
+  const alignment = g.align ?? 'affine';
+  // landmarks: named points on the start surface, carried through the chain by their triangle and weights
+  const start = g.landmarks ?? {};
+  const located = new Map<string, { corners: [number, number, number]; weights: [number, number, number] }>();
+  for (const [name, point] of Object.entries(start)) {
+    const at = locateOnSurface(mesh, point);
+    located.set(name, at);
+    if (at.distance > 0.05 * Math.sqrt(meshArea(mesh))) input.warnings.push(`growth.landmarks.${name}: (${point.join(', ')}) lies ${at.distance.toPrecision(3)} from the start surface; it is pinned at the surface's closest point`);
+  }
+  const reports: StageMapReport[] = [];
+  let current = stages[0];
+  let failed = false;
   g.keyframes.forEach((kf, j) => {
+    if (failed) return;
     const path = ['growth', 'keyframes', j];
     if (kf.time <= times[times.length - 1]) problems.add([...path, 'time'], `keyframe times must increase: ${kf.time} follows ${times[times.length - 1]}`);
+    for (const name of Object.keys(kf.landmarks ?? {})) if (!located.has(name)) problems.add([...path, 'landmarks', name], `no landmark "${name}" on the start mesh: give its point there under growth.landmarks (${located.size ? `known: ${[...located.keys()].join(', ')}` : 'none given'})`);
     let stage: LoadedMesh;
     try {
       stage = input.env.loadMesh({ file: kf.file });
     } catch (e) {
       problems.add([...path, 'file'], (e as Error).message);
+      failed = true;
       return;
     }
     const same = stage.mesh.triangles.length === mesh.triangles.length && stage.mesh.positions.length === mesh.positions.length && stage.mesh.triangles.every((v, i) => v === mesh.triangles[i]);
     if (same) {
-      stages.push(Float64Array.from(stage.mesh.positions));
+      current = Float64Array.from(stage.mesh.positions);
     } else {
-      const map = mapOntoSurface(mesh, stage.mesh, g.align ?? 'none');
-      const bad = map.folded.length + map.collapsed.length;
+      const names = Object.keys(kf.landmarks ?? {}).filter((name) => located.has(name));
+      const landmarks = names.map((name) => ({ ...located.get(name)!, target: kf.landmarks![name] }));
+      const t0 = performance.now();
+      const map = mapOntoSurface({ positions: current, triangles: mesh.triangles }, stage.mesh, { alignment, landmarks });
+      const { report } = stageMapReport(mesh.triangles, current, map, stage.mesh, { stage: j + 1, file: kf.file, time: kf.time, landmarkNames: names, seconds: (performance.now() - t0) / 1000 });
+      reports.push(report);
+      const bad = map.folded.length + map.collapsed.length + map.bridging.length;
       const nF = mesh.triangles.length / 3;
       if (bad > (g.maxFolded ?? 0) * nF) {
-        const t = map.folded[0] ?? map.collapsed[0];
+        const t = map.folded[0] ?? map.collapsed[0] ?? map.bridging[0];
         const tri = mesh.triangles;
         const where = [0, 1, 2].map((d) => ((map.positions[3 * tri[3 * t] + d] + map.positions[3 * tri[3 * t + 1] + d] + map.positions[3 * tri[3 * t + 2] + d]) / 3).toPrecision(3));
-        problems.add([...path, 'file'], `carrying the mesh onto this stage by closest points folds ${map.folded.length} and collapses ${map.collapsed.length} of ${nF} triangles (first: triangle ${t} near (${where.join(', ')})); align it (align: similarity), use a closer stage, or allow some with maxFolded`);
+        const tried = `${alignment === 'none' ? 'no global alignment' : `${alignment} alignment`}, a smooth registration with its stiffness lowered in ${REGISTRATION_STIFFNESS_LENGTHS.length} steps, then closest points${map.relaxed ? ` and relaxation of ${map.relaxed} vertices` : ''}`;
+        const give = [
+          names.length === 0 ? 'landmarks (growth.landmarks and each stage\'s landmarks: the base centre, the distal tip…) to pin what the shapes leave open' : 'more landmarks near the fold',
+          `an intermediate stage between t = ${times[times.length - 1]} and ${kf.time}`,
+          alignment !== 'affine' ? 'align: affine (stretch along axes taken out first)' : '',
+        ].filter(Boolean);
+        problems.add([...path, 'file'], `carrying the mesh onto this stage folds ${map.folded.length}, collapses ${map.collapsed.length} and stretches ${map.bridging.length} across gaps of ${nF} triangles (first: triangle ${t} near (${where.join(', ')})) after ${tried}; give ${give.join(', or ')}${g.maxFolded === undefined ? '; or tolerate a fraction with maxFolded' : ''}`);
+        failed = true;
         return;
       }
-      if (bad) input.warnings.push(`keyframe ${j} (${kf.file}): the closest-point map folds ${map.folded.length} and collapses ${map.collapsed.length} triangles (tolerated by maxFolded)`);
-      stages.push(map.positions);
+      if (bad) input.warnings.push(`keyframe ${j} (${kf.file}): the map folds ${map.folded.length}, collapses ${map.collapsed.length} and stretches ${map.bridging.length} triangles across gaps (tolerated by maxFolded)`);
+      current = map.positions;
     }
+    stages.push(current);
     times.push(kf.time);
   });
+  if (failed) return undefined;
   const interpolation = g.interpolation ?? 'cubic';
-  return (_reference, refinements) => {
+  const makeLaw: GrowthPlan['makeLaw'] = (_reference, refinements) => {
     const refined = stages.map((x) => refinements.reduce((acc, rf) => prolongField(acc, rf, 3), x));
     return keyframeGrowth(times, refined, interpolation, `${g.keyframes!.length + 1} keyframes at t = ${times.join(', ')}, ${interpolation} interpolation`);
   };
+  input.stageMaps?.push(...reports);
+  return makeLaw;
 }
 
 /**
@@ -149,7 +189,7 @@ export const GROWTH_LAWS: Record<GrowthSpec['law'], GrowthLawEntry> = {
     },
   },
   keyframes: {
-    keys: ['keyframes', 'interpolation', 'align', 'maxFolded'],
+    keys: ['keyframes', 'interpolation', 'align', 'maxFolded', 'landmarks'],
     refuses: [{ keys: ['course', 'centre', 'capacity'], path: ['growth'], message: 'course, centre and capacity apply to scaling laws, not to keyframes' }],
     build: keyframeStages,
   },

@@ -5,12 +5,13 @@ import type { GrowthPlan, ScenarioEnvironment } from './ResolvedScenario.ts';
 import type { FieldPlan } from './resolveFields.ts';
 import type { Linearisation } from './linearisation.ts';
 import { GROWTH_LAWS } from './growthLaws.ts';
+import type { StageMapReport } from '../growth/stageMapReport.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
 import { GROWTH_AREA_TOLERANCE, GROWTH_REFINE_MAX_VERTICES } from '../defaults.ts';
 
 /** Keys that belong to one law or another: named when given to a law that does not read them. */
 const LAW_KEYS = ['rate', 'rates', 'axes', 'speed', 'expansion'] as const;
-const KEYFRAME_KEYS = ['keyframes', 'interpolation', 'align', 'maxFolded'] as const;
+const KEYFRAME_KEYS = ['keyframes', 'interpolation', 'align', 'maxFolded', 'landmarks'] as const;
 
 /** Area centroid of a surface (lumped-mass weights). */
 function areaCentroid(mesh: Mesh): [number, number, number] {
@@ -47,7 +48,8 @@ export function resolveGrowth(ctx: ResolveContext, g: GrowthSpec, mesh: Mesh, fi
   };
   for (const k of KEYFRAME_KEYS) if (g[k] !== undefined && g.law !== 'keyframes') problems.add(['growth', k], `"${k}" applies to law: keyframes`);
   for (const r of entry.refuses ?? []) if (r.keys.some((k) => g[k] !== undefined)) problems.add(r.path, r.message);
-  const makeLaw = entry.build({ g, problems, mesh, centre, constants: fields.constants, vertexDataOf: fields.vertexDataOf, env, warnings: ctx.warnings });
+  const stageMaps: StageMapReport[] = [];
+  const makeLaw = entry.build({ g, problems, mesh, centre, constants: fields.constants, vertexDataOf: fields.vertexDataOf, env, warnings: ctx.warnings, stageMaps });
   let plan: GrowthPlan | undefined;
   if (makeLaw) {
     plan = {
@@ -55,6 +57,7 @@ export function resolveGrowth(ctx: ResolveContext, g: GrowthSpec, mesh: Mesh, fi
       centre: entry.keys.includes('centre') ? centre : undefined,
       description: makeLaw(mesh.positions, []).description,
       tolerance: g.tolerance ?? GROWTH_AREA_TOLERANCE,
+      stages: stageMaps.length ? stageMaps : undefined,
       refine: g.refine ? { edgeGrowth: g.refine.edgeGrowth ?? Infinity, maxEdge: refineEdgeFor(g.refine.perWavelength), maxVertices: g.refine.maxVertices ?? GROWTH_REFINE_MAX_VERTICES } : undefined,
     };
   }

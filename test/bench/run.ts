@@ -90,4 +90,19 @@ if (process.env.BENCH_REMESH !== '0') {
   }
 }
 
+if (process.env.BENCH_STAGES !== '0') {
+  // carrying a limb-bud stage onto a later one meshed separately (30 % longer, paddle 25 % wider, 1.2× the vertices)
+  const { mapOntoSurface } = await import('../../solver/growth/mapOntoSurface.ts');
+  console.log('\nStage to stage: a limb bud onto its next stage (30 % longer, paddle 25 % wider), affine + smooth registration');
+  console.log('| source vertices | stage vertices | seconds | folded | collapsed | across gaps |');
+  console.log('|---:|---:|---:|---:|---:|---:|');
+  for (const n of (process.env.BENCH_STAGES_SIZES ?? '10000 50000').split(/\s+/).filter(Boolean).map(Number)) {
+    const a = buildShape({ shape: 'limb-bud', vertices: n }).mesh;
+    const b = buildShape({ shape: 'limb-bud', params: { length: 3.9, paddleWidth: 1.25 }, vertices: Math.round(1.2 * n) }).mesh;
+    const t0 = performance.now();
+    const map = mapOntoSurface(a, b);
+    console.log(`| ${a.positions.length / 3} | ${b.positions.length / 3} | ${((performance.now() - t0) / 1000).toFixed(1)} | ${map.folded.length} | ${map.collapsed.length} | ${map.bridging.length} |`);
+  }
+}
+
 if (process.env.BENCH_SWEEP !== '0') await sweepPoolBench();
