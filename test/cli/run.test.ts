@@ -416,7 +416,7 @@ describe('shipped example scenarios', () => {
       // a short run of the same scenario: copy it with an early end
       const short = temp.path(`short-${name}`);
       copyFileSync(join(examples, name), short);
-      writeFileSync(short, readFileSync(short, 'utf8').replace(/\n  end: [0-9.e+]+/, `\n  end: ${2 * plan.time.step}`).replace(/mesh:\n/, 'mesh:\n').replace(/file: /, `file: ${examples}/`));
+      writeFileSync(short, readFileSync(short, 'utf8').replace(/\n  end: [0-9.e+]+/, `\n  end: ${2 * plan.time.step}`).replace(/mesh:\n/, 'mesh:\n').replace(/file: /g, `file: ${examples}/`));
       const ran = await run('run', short, '--out', temp.path(`ran-${name}`), '--progress', 'none');
       expect(ran.code, ran.err).toBe(0);
     });
