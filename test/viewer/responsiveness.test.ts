@@ -71,17 +71,20 @@ describe.skipIf(!haveChromium)('the viewer stays responsive while a simulation r
     // the step history covers a rate window (and a little) before the first sample
     await page.waitForFunction((span) => { const h = (window as unknown as { __steps: [number, number][] }).__steps; return h.length > 1 && h[h.length - 1][0] - h[0][0] > span; }, VIEWER_RATE_WINDOW_MS * 1.5, { timeout: 60_000 });
     const sample = () => page.evaluate(() => {
-      const w = window as unknown as { __placode: { step: number; stepsPerSecond: number; paints: number }; __longTaskMs: number };
-      return { now: performance.now(), step: w.__placode.step, rate: w.__placode.stepsPerSecond, paints: w.__placode.paints, longTaskMs: w.__longTaskMs, shown: document.querySelector('#status-rate')!.textContent ?? '' };
+      const w = window as unknown as { __placode: { step: number; stepsPerSecond: number; paints: number; paintIntervalMs: number }; __longTaskMs: number };
+      return { now: performance.now(), step: w.__placode.step, rate: w.__placode.stepsPerSecond, paints: w.__placode.paints, interval: w.__placode.paintIntervalMs, longTaskMs: w.__longTaskMs, shown: document.querySelector('#status-rate')!.textContent ?? '' };
     });
     const first = await sample();
     const rates: number[] = [];
+    const intervals: number[] = [first.interval];
     const tabs = ['timeline-panel', 'export-panel', 'messages-panel', 'stability-panel'];
     for (let k = 0; k < 20; k++) {
       await page.click(`.tabs button[data-tab="${tabs[k % tabs.length]}"]`);
       await page.waitForFunction((n) => (window as unknown as { __clicks: number[] }).__clicks.length > n, k); // answered (the frame after it began)
       expect(await page.isVisible(`#${tabs[k % tabs.length]}`)).toBe(true);
-      rates.push((await sample()).rate);
+      const now = await sample();
+      rates.push(now.rate);
+      intervals.push(now.interval);
       await page.waitForTimeout(250); // a user's pace between clicks
     }
     const last = await sample();
@@ -111,7 +114,11 @@ describe.skipIf(!haveChromium)('the viewer stays responsive while a simulation r
     expect(last.shown).toMatch(/^[0-9.]+(e[+-]?\d+)? steps\/s$/);
     // painted no more often than every VIEWER_PAINT_INTERVAL_MS (a little slack for timer rounding)
     expect(paintsPerSecond).toBeLessThan(1.1 * (1000 / VIEWER_PAINT_INTERVAL_MS));
-    expect(paintsPerSecond).toBeGreaterThan(2);
+    // and not much less often than the pacer allows: it waits its interval (longer where drawing is slow —
+    // software WebGL on a busy machine), then a frame, then the paint and the worker's next state, so a paint
+    // at least every two intervals and a half is the floor whatever the machine
+    const longest = Math.max(...intervals);
+    expect(paintsPerSecond).toBeGreaterThan(1000 / (2.5 * longest));
     await page.click('#run');
     await close(page);
   }, 180_000);

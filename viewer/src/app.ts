@@ -58,11 +58,13 @@ interface AppState {
   threads: number;
   /** paints of the live simulation so far (at most one per VIEWER_PAINT_INTERVAL_MS) */
   paints: number;
+  /** the pacer's current least time between live paints: VIEWER_PAINT_INTERVAL_MS, longer when drawing is slow (5 × a frame's cost, at most 1 s) */
+  paintIntervalMs: number;
   /** the WebGL renderer, and whether the surface is antialiased (not in software WebGL) */
   webgl: { renderer: string; antialias: boolean } | null;
 }
 
-const app: AppState = { ready: false, loaded: false, running: false, time: 0, step: 0, vertices: 0, species: [], frames: 0, view: 'live', problems: [], messages: [], stability: null, shown: null, stepsPerSecond: 0, serverRun: null, brushMs: 0, strokes: 0, threads: 1, paints: 0, webgl: null };
+const app: AppState = { ready: false, loaded: false, running: false, time: 0, step: 0, vertices: 0, species: [], frames: 0, view: 'live', problems: [], messages: [], stability: null, shown: null, stepsPerSecond: 0, serverRun: null, brushMs: 0, strokes: 0, threads: 1, paints: 0, paintIntervalMs: VIEWER_PAINT_INTERVAL_MS, webgl: null };
 (window as unknown as { __placode: AppState }).__placode = app;
 
 const worker = new Worker(new URL('./simulationWorker.ts', import.meta.url), { type: 'module' });
@@ -314,7 +316,7 @@ worker.onerror = (e) => say(`the simulation worker failed: ${e.message}`, 'error
  * page's time (software WebGL on a busy machine); then the worker may send the next.
  */
 let timelineChanged = false;
-const livePaint = new PaintPacer(() => Math.min(1000, Math.max(VIEWER_PAINT_INTERVAL_MS, 5 * view.frameCostMs)), () => {
+const livePaint = new PaintPacer(() => (app.paintIntervalMs = Math.min(1000, Math.max(VIEWER_PAINT_INTERVAL_MS, 5 * view.frameCostMs))), () => {
   if (timelineChanged) updateTimeline();
   timelineChanged = false;
   if (app.view === 'live') paint();
