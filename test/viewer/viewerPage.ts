@@ -4,7 +4,7 @@ import type { Browser, Page } from 'playwright-core';
 /** What the page exposes as window.__placode (see viewer/src/app.ts). */
 export interface AppState {
   ready: boolean; loaded: boolean; running: boolean; step: number; time: number; vertices: number; frames: number; view: string; problems: string[]; messages: string[];
-  shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number; time: number } | null;
+  shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number; time: number; range: [number, number] } | null;
   serverRun: { name: string; frames: number } | null;
   strokes: number;
   stepsPerSecond: number;
@@ -34,7 +34,8 @@ export async function open(browser: Browser, url: string, withRun = false, befor
   pageErrors.set(page, errors);
   page.on('pageerror', (e) => errors.push(e.message));
   if (beforeLoad) await page.addInitScript(beforeLoad);
-  await page.goto(url);
+  // the form's own scenario (Gray–Scott on a small sphere), not the example the viewer opens on, unless the url names one
+  await page.goto(withRun || /[?&]example=/.test(url) ? url : `${url}${url.includes('?') ? '&' : '?'}example=`);
   await page.waitForFunction((run) => {
     const a = (window as unknown as { __placode: AppState }).__placode;
     return a?.ready && (run || a.loaded);

@@ -37,6 +37,7 @@ function stability(r: ResolvedScenario): StabilityView {
       rates: J ? eigenvalues.map((l) => growthRate(J, D, l)) : [],
       unstable: rep.modes.map((m) => ({ index: m.index, eigenvalue: m.eigenvalue, rate: m.rate })),
       predicted: rep.predicted,
+      units: r.units,
     };
   } catch (e) {
     return { species: r.species, notes: [`stability analysis failed: ${(e as Error).message}`], steadyState: null, band: null, fastest: null, dispersion: { k2: [], rate: [] }, eigenvalues: [], rates: [], unstable: [], predicted: null };

@@ -21,6 +21,8 @@ import type { Mesh } from '../../solver/mesh/Mesh.ts';
 import { VIEWER_PAINT_INTERVAL_MS } from '../../solver/defaults.ts';
 import { PaintPacer } from './paintPacer.ts';
 
+/** The example the viewer opens on. */
+const FIRST_EXAMPLE = 'limb-paddle-growing';
 const EXAMPLES = import.meta.glob('../../meshes/examples/*.yaml', { query: '?raw', import: 'default', eager: true }) as Record<string, string>;
 
 /** One picture of the timeline: a state on a surface. */
@@ -47,7 +49,7 @@ interface AppState {
   messages: string[];
   stability: StabilityView | null;
   /** min, mean and max of the painted field as shown, and the time of the frame painted */
-  shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number; time: number } | null;
+  shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number; time: number; range: [number, number] } | null;
   stepsPerSecond: number;
   serverRun: { name: string; frames: number } | null;
   /** milliseconds of the last brush dab (picking and gathering vertices; the BVH is built on the first) */
@@ -115,17 +117,31 @@ function onAnalysis(m: FromAnalysis) {
 const view = new SurfaceView(byId('stage'));
 app.webgl = view.gl;
 const openedFiles: Record<string, MeshFileContents> = {};
-const form = new ScenarioForm(() => { byId('setup').classList.add('pending'); });
+const form = new ScenarioForm(() => { byId('setup').classList.add('pending'); if (app.ready) status(); });
 byId('scenario-panel').append(form.root);
 
-// ---- messages
+// ---- messages: all in the Messages tab (a warning or error repeated at once is kept once); errors of an
+// action also where it was taken (notice)
 function say(text: string, kind: 'info' | 'error' | 'warning' = 'info') {
+  if (kind !== 'info' && app.messages[0] === `${kind}: ${text}`) return;
   const box = byId('messages');
   const p = el('p', { class: kind, text });
   box.prepend(p);
   while (box.childElementCount > 12) box.lastElementChild!.remove();
   app.messages.unshift(`${kind}: ${text}`);
 }
+/** Show a message beside the controls of the action that raised it (replacing the last one there), and log it. */
+function notice(where: 'transport-notice' | 'toolbar-notice', text: string, kind: 'error' | 'warning' | 'info' = 'error') {
+  const box = byId(where);
+  box.textContent = text;
+  box.className = `notice ${kind}`;
+  box.hidden = false;
+  say(text, kind);
+}
+function clearNotice(where: 'transport-notice' | 'toolbar-notice') {
+  byId(where).hidden = true;
+}
+
 function clearProblems() {
   byId('problems').replaceChildren();
   app.problems = [];
@@ -161,11 +177,14 @@ function fieldRange(values: Float64Array): [number, number] {
   return [lo, hi];
 }
 
+/** Below this spread (max − min over the largest |value|) a field is shown with that much colour range at least, and its spread is stated. */
+const TINY_CONTRAST = 0.01;
+
 /** The frame shown: the live one, or one of the timeline (an eigenmode is painted on the live one). */
 const shownFrame = () => (app.view === 'live' ? live : shown);
 
 /** What is painted on a frame, as on screen: the field or eigenmode, its label, colormap and colour range. */
-function painting(frame: Frame): { values: Float64Array; label: string; colormap: ColormapName; range: [number, number]; own: [number, number]; showMode: boolean } | undefined {
+function painting(frame: Frame): { values: Float64Array; label: string; colormap: ColormapName; range: [number, number]; own: [number, number]; showMode: boolean; relative?: number } | undefined {
   const showMode = app.view === 'mode' && mode !== undefined;
   const label = showMode ? `mode ${mode!.index}` : speciesSelect.value;
   const values = showMode ? mode!.values : frame.fields[label];
@@ -179,8 +198,16 @@ function painting(frame: Frame): { values: Float64Array; label: string; colormap
     rangeSelect.value === 'fixed' ? [Number(byId<HTMLInputElement>('range-min').value), Number(byId<HTMLInputElement>('range-max').value)]
     : rangeSelect.value === 'run' && runRange ? [Math.min(runRange[0], own[0]), Math.max(runRange[1], own[1])]
     : own;
+  // a field that hardly varies (noise around the rest state) is not stretched over the whole map:
+  // "each frame" spans at least TINY_CONTRAST of the field's size, and the caption says how small it is
+  const size = Math.max(Math.abs(own[0]), Math.abs(own[1]));
+  const relative = size > 0 ? (own[1] - own[0]) / size : 0;
+  if (rangeSelect.value === 'frame' && size > 0 && relative < TINY_CONTRAST) {
+    const mid = (own[0] + own[1]) / 2;
+    range = [mid - (TINY_CONTRAST * size) / 2, mid + (TINY_CONTRAST * size) / 2];
+  }
   if (!(range[1] > range[0])) range = [range[0] - 0.5, range[0] + 0.5];
-  return { values, label, colormap: colormapSelect.value as ColormapName, range, own, showMode };
+  return { values, label, colormap: colormapSelect.value as ColormapName, range, own, showMode, relative };
 }
 
 /** Paint what is shown: a frame (live or recorded) or an eigenmode. */
@@ -204,8 +231,9 @@ function paint() {
   let sum = 0;
   for (let i = 0; i < p.values.length; i++) sum += p.values[i];
   if (shownExtent.positions !== frame.mesh.positions) shownExtent = { positions: frame.mesh.positions, value: extent(frame.mesh.positions) };
-  app.shown = { species: p.label, min: p.own[0], mean: sum / p.values.length, max: p.own[1], vertices: frame.mesh.positions.length / 3, extent: shownExtent.value, time: frame.time };
-  byId('view-caption').textContent = p.showMode ? `eigenmode ${mode!.index}, λ = ${fmt(mode!.eigenvalue)}` : `${timelineSource === 'server' && app.view === 'frame' ? 'recorded run' : app.view === 'frame' ? 'timeline' : 'live'} · t = ${fmt(frame.time)}`;
+  app.shown = { species: p.label, min: p.own[0], mean: sum / p.values.length, max: p.own[1], vertices: frame.mesh.positions.length / 3, extent: shownExtent.value, time: frame.time, range: p.range };
+  const tiny = !p.showMode && p.relative !== undefined && p.relative < TINY_CONTRAST ? ` · ${p.label} varies by ${p.relative === 0 ? 'nothing' : `${fmt(100 * p.relative)} %`} of its size: no pattern yet` : '';
+  byId('view-caption').textContent = p.showMode ? `eigenmode ${mode!.index}, λ = ${fmt(mode!.eigenvalue)}` : `${timelineSource === 'server' && app.view === 'frame' ? 'recorded run' : app.view === 'frame' ? 'timeline' : 'live'} · t = ${fmt(frame.time)}${tiny}`;
 }
 
 for (const id of ['paint-species', 'paint-colormap', 'paint-range', 'range-min', 'range-max']) byId(id).addEventListener('input', () => { runRange = undefined; paint(); });
@@ -214,11 +242,22 @@ byId<HTMLInputElement>('wireframe').addEventListener('change', (e) => view.setWi
 
 // ---- status line
 function status() {
-  byId('status-time').textContent = `t = ${fmt(app.time)}`;
-  byId('status-steps').textContent = `${app.step} steps`;
+  const recorded = app.view === 'frame' && timelineSource === 'server';
+  const frame = shownFrame();
+  byId('status-state').textContent = recorded ? `recorded run ${runName}` : app.running ? 'running' : app.loaded ? (app.step > 0 ? 'paused' : 'set up') : 'not set up';
+  byId('status-time').textContent = `t = ${fmt(recorded && frame ? frame.time : app.time)}`;
+  byId('status-steps').textContent = recorded ? `frame ${Number(byId<HTMLInputElement>('timeline-slider').value) + 1} of ${timeline.length}` : `${app.step} steps`;
+  byId('status-vertices').textContent = `${recorded && frame ? frame.mesh.positions.length / 3 : app.vertices} vertices`;
   byId('status-rate').textContent = app.running ? `${fmt(app.stepsPerSecond)} steps/s` : app.loaded ? 'paused' : 'not set up';
-  byId('status-vertices').textContent = `${app.vertices} vertices`;
   byId('run').textContent = app.running ? 'Pause' : 'Start';
+  // the first steps: tissue and mechanism in the form, then Set up, then Start
+  // (the form always holds a tissue and a mechanism; a change not set up yet makes Set up the next step again)
+  const next = !app.loaded || byId('setup').classList.contains('pending') ? 2 : app.step > 0 || app.running ? 4 : 3;
+  document.querySelectorAll<HTMLElement>('#guide li').forEach((li, k) => {
+    li.classList.toggle('done', k < next);
+    li.classList.toggle('current', k === next);
+  });
+  byId('run').classList.toggle('primary', app.loaded);
 }
 
 // ---- the worker's messages
@@ -302,7 +341,7 @@ worker.onmessage = (event: MessageEvent<FromSimulation>) => {
       status();
       break;
     case 'error':
-      say(m.message, 'error');
+      notice('transport-notice', m.message);
       app.running = false;
       status();
       break;
@@ -352,7 +391,8 @@ function thinTimeline() {
 
 // ---- transport
 byId('run').addEventListener('click', () => {
-  if (!app.loaded) return say('set up a scenario first', 'error');
+  if (!app.loaded) return notice('transport-notice', 'Nothing to start yet: choose the tissue and the mechanism on the left, then press “Set up”.');
+  clearNotice('transport-notice');
   if (app.running) send({ type: 'pause' });
   else {
     app.view = 'live';
@@ -361,7 +401,7 @@ byId('run').addEventListener('click', () => {
   }
   status();
 });
-byId('step').addEventListener('click', () => { if (app.loaded) { app.view = 'live'; send({ type: 'step', steps: Number(byId<HTMLInputElement>('step-count').value) || 1 }); } });
+byId('step').addEventListener('click', () => { if (!app.loaded) return notice('transport-notice', 'Nothing to step yet: press “Set up” first.'); if (app.loaded) { app.view = 'live'; send({ type: 'step', steps: Number(byId<HTMLInputElement>('step-count').value) || 1 }); } });
 byId('reset').addEventListener('click', () => {
   if (!app.loaded) return;
   timeline = [];
@@ -390,7 +430,7 @@ for (const path of Object.keys(EXAMPLES).sort()) {
 }
 exampleSelect.addEventListener('change', () => {
   if (!exampleSelect.value) return;
-  form.useText(EXAMPLES[exampleSelect.value]);
+  form.showScenario(EXAMPLES[exampleSelect.value]);
   setUp();
 });
 
@@ -435,15 +475,20 @@ stage.addEventListener('drop', (e) => {
 // ---- brush
 function setTool(tool: 'off' | 'seed' | 'erase') {
   view.setBrush(tool);
-  for (const t of ['off', 'seed', 'erase']) byId(`tool-${t}`).classList.toggle('active', t === tool);
+  for (const t of ['off', 'seed', 'erase']) {
+    byId(`tool-${t}`).classList.toggle('active', t === tool);
+    byId(`tool-${t}`).setAttribute('aria-pressed', String(t === tool));
+  }
 }
 for (const t of ['off', 'seed', 'erase'] as const) byId(`tool-${t}`).addEventListener('click', () => setTool(t));
 byId<HTMLInputElement>('brush-size').addEventListener('input', (e) => { view.brushRadius = Number((e.target as HTMLInputElement).value) / 100; });
 view.onStroke = (stroke) => {
   app.brushMs = view.lastBrushMs;
-  if (!app.loaded || app.view !== 'live') return say('brushing paints the live state: press “Show live” first', 'warning');
+  if (!app.loaded) return notice('toolbar-notice', 'The brushes act on a set-up tissue: press “Set up” first.', 'warning');
+  if (app.view !== 'live') return notice('toolbar-notice', 'The brushes act on the live state: press “Show live” first.', 'warning');
   const values = view.brushing === 'seed' ? form.spotValuesBySpecies() : rest;
-  if (view.brushing === 'seed' && values.every((v) => v === null)) return say('give the spot values (Start section) that the seed brush paints', 'error');
+  if (view.brushing === 'seed' && values.every((v) => v === null)) return notice('toolbar-notice', 'Give the spot values (Start section, left) that Induce paints.');
+  clearNotice('toolbar-notice');
   send({ type: 'brush', vertices: stroke.vertices, weights: stroke.weights, mode: view.brushing === 'erase' ? 'erase' : 'seed', values }, [stroke.vertices.buffer, stroke.weights.buffer]);
   app.strokes++;
 };
@@ -453,11 +498,13 @@ function showStability(v: StabilityView) {
   drawDispersion(byId('dispersion'), v, askMode);
   const lines: string[] = [];
   if (v.steadyState) lines.push(`steady state ${Object.entries(v.steadyState).map(([k, x]) => `${k} = ${fmt(x)}`).join(', ')}`);
-  lines.push(v.band ? `unstable band k² ∈ [${fmt(v.band[0])}, ${fmt(v.band[1])}], fastest k² = ${fmt(v.fastest!.k2)} (rate ${fmt(v.fastest!.rate)})` : 'no Turing band: the steady state is stable to every spatial mode (or unstable without diffusion)');
-  lines.push(v.predicted ? `predicted: mode ${v.predicted.index}, λ = ${fmt(v.predicted.eigenvalue)}, multiplicity ${v.predicted.multiplicity}` : 'no surface mode grows');
+  const per = v.units ? ` 1/${v.units}²` : '';
+  lines.push(v.band ? `unstable band k² ∈ [${fmt(v.band[0])}, ${fmt(v.band[1])}]${per}, fastest k² = ${fmt(v.fastest!.k2)}${per} (wavelength 2π/k = ${fmt((2 * Math.PI) / Math.sqrt(v.fastest!.k2))}${v.units ? ` ${v.units}` : ''}; perturbations grow at rate σ = ${fmt(v.fastest!.rate)})` : 'no Turing band: the steady state is stable to every spatial mode (or unstable without diffusion)');
+  lines.push(v.predicted ? `predicted: mode ${v.predicted.index}, λ = ${fmt(v.predicted.eigenvalue)}, multiplicity ${v.predicted.multiplicity}` : v.band ? 'no surface mode falls in the band: this surface has no eigenvalue there (a larger or finer surface would)' : 'no surface mode grows from small disturbances');
+  if (!v.predicted) lines.push('A pattern can still form: linear analysis speaks of small disturbances only, and mechanisms such as Gray–Scott make spots from large local ones (the seeds of Induce) — finite-amplitude patterns this tab cannot predict.');
   byId('stability-summary').replaceChildren(...[...lines, ...v.notes].map((t) => el('p', { text: t })));
   byId('mode-list').replaceChildren(...v.unstable.slice(0, 40).map((m) => {
-    const b = el('button', { type: 'button', class: 'mode', 'data-mode': m.index, text: `${m.index}: λ ${fmt(m.eigenvalue)}, rate ${fmt(m.rate)}` });
+    const b = el('button', { type: 'button', class: 'mode', 'data-mode': m.index, text: `${m.index}: λ ${fmt(m.eigenvalue)}, σ ${fmt(m.rate)}`, title: `paint mode ${m.index} (perturbation growth rate σ = ${fmt(m.rate)})` });
     b.addEventListener('click', () => askMode(m.index));
     return b;
   }));
@@ -489,9 +536,11 @@ async function showFrame(index: number) {
   }
   shown = f;
   app.view = 'frame';
+  slider.value = String(index);
   if (timelineSource === 'server') setSpecies(Object.keys(f.fields), preferredSpecies);
   byId('timeline-label').textContent = `frame ${index + 1} of ${timeline.length}, t = ${fmt(f.time)}`;
   paint();
+  status();
 }
 slider.addEventListener('input', () => void showFrame(Number(slider.value)));
 byId('load-run').addEventListener('click', () => void loadServerRun());
@@ -541,6 +590,8 @@ async function loadServerRun() {
   await showFrame(timeline.length - 1);
   await showFrame(0);
   app.serverRun = { name: info.name, frames: timeline.length };
+  // the form describes this run: its scenario as text (the form's fields greyed: they describe the set-up, not the run)
+  if (runScenarioText) form.showScenario(runScenarioText);
   say(`loaded run ${info.name}: ${timeline.length} frames`);
 }
 
@@ -552,10 +603,10 @@ byId('export-png').addEventListener('click', () => {
   const frame = shownFrame();
   const p = frame && painting(frame);
   if (p) {
-    const scale = Math.max(1, h / 700);
+    const scale = Math.max(1, Math.round(h / 700)); // whole pixels: every row of the bar one colour of the map
     const bar = document.createElement('canvas');
-    drawColorBar(bar, p.colormap, p.range, p.label, scale);
-    picture.getContext('2d')!.drawImage(bar, w - bar.width - 10 * scale, (h - bar.height) / 2);
+    drawColorBar(bar, p.colormap, p.range, p.label, scale, '#ffffff');
+    picture.getContext('2d')!.drawImage(bar, Math.round(w - bar.width - 10 * scale), Math.round((h - bar.height) / 2));
   }
   picture.toBlob((blob) => { if (blob) download('placode-view.png', blob, 'image/png'); }, 'image/png');
 });
@@ -597,6 +648,13 @@ for (const tab of document.querySelectorAll<HTMLButtonElement>('[data-tab]')) {
     (document.querySelector('[data-tab="timeline-panel"]') as HTMLButtonElement).click();
   } else {
     byId('load-run').hidden = true;
+    // the first screen: the project's growing limb bud (?example=NAME opens another, ?example= the form's own scenario)
+    const wanted = new URLSearchParams(location.search).get('example') ?? FIRST_EXAMPLE;
+    const path = Object.keys(EXAMPLES).find((p) => p.endsWith(`/${wanted}.yaml`));
+    if (wanted && path) {
+      exampleSelect.value = path;
+      form.showScenario(EXAMPLES[path]);
+    } else if (wanted) say(`no example named "${wanted}": the form's own scenario is set up instead`, 'warning');
     setUp();
   }
   app.ready = true;

@@ -2,12 +2,14 @@
 import { colormapTable, type ColormapName } from '../../solver/io/colormap.ts';
 import { niceTicks, tickLabel } from '../../solver/io/surfaceView.ts';
 
-export function drawColorBar(canvas: HTMLCanvasElement, colormap: ColormapName, range: [number, number], species: string, scale = 1): void {
+/** `background`: an opaque fill behind bar and labels (an exported picture), else transparent. `scale`: whole pixels per unit. */
+export function drawColorBar(canvas: HTMLCanvasElement, colormap: ColormapName, range: [number, number], species: string, scale = 1, background?: string): void {
   const w = 86 * scale, h = 260 * scale;
   canvas.width = w;
   canvas.height = h;
   const g = canvas.getContext('2d')!;
   g.clearRect(0, 0, w, h);
+  if (background) { g.fillStyle = background; g.fillRect(0, 0, w, h); }
   const lut = colormapTable(colormap);
   const top = 26 * scale, bottom = h - 12 * scale, left = 8 * scale, barW = 16 * scale;
   for (let y = top; y < bottom; y++) {
@@ -19,7 +21,7 @@ export function drawColorBar(canvas: HTMLCanvasElement, colormap: ColormapName, 
   g.lineWidth = scale;
   g.strokeRect(left, top, barW, bottom - top);
   g.fillStyle = '#222';
-  g.font = `${12 * scale}px system-ui, sans-serif`;
+  g.font = `${12 * scale}px "DejaVu Sans", system-ui, sans-serif`;
   g.fillText(species, left, 16 * scale);
   const [lo, hi] = range;
   if (!(hi > lo)) return;

@@ -40,6 +40,8 @@ export interface StabilityView {
   rates: number[];
   unstable: { index: number; eigenvalue: number; rate: number }[];
   predicted: { index: number; eigenvalue: number; rate: number; multiplicity: number } | null;
+  /** the mesh's length unit, when stated */
+  units?: string;
 }
 
 export type FromSimulation =

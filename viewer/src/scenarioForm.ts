@@ -3,12 +3,15 @@
  * that writes a scenario (the same YAML the command line runs), with live
  * checks of every formula. A text mode takes any scenario as written.
  */
-import { stringify } from 'yaml';
 import { SHAPES } from '../../meshes/shapes/index.ts';
 import { MODELS } from '../../solver/kinetics/models/index.ts';
 import { parseFormula } from '../../solver/kinetics/parseFormula.ts';
-import type { Scenario } from '../../solver/scenario/Scenario.ts';
 import { el } from './dom.ts';
+import { createFormFields, row, section } from './formFields.ts';
+import { scenarioFromForm } from './scenarioFromForm.ts';
+import { scenarioIntoForm } from './scenarioIntoForm.ts';
+import { parse } from 'yaml';
+import type { Scenario } from '../../solver/scenario/Scenario.ts';
 
 export interface OpenedMesh {
   name: string;
@@ -16,6 +19,7 @@ export interface OpenedMesh {
 }
 
 const CUSTOM = 'own formulas';
+const TEXT_NOTE = 'The scenario text is in use: the form above is not. “Back to the form” returns to it.';
 
 /** A sensible end time for a model: 10 000 of its suggested steps. */
 const defaultEnd = (model: string) => 10_000 * (MODELS[model]?.suggestedStep ?? 1);
@@ -28,83 +32,56 @@ export class ScenarioForm {
   readonly text: HTMLTextAreaElement;
   private readonly formulaMessages: HTMLElement;
 
-  // tissue
-  private readonly source = el('select', { id: 'tissue-source', 'aria-label': 'tissue source' });
-  private readonly shape = el('select', { id: 'tissue-shape', 'aria-label': 'shape' });
-  private readonly shapeParams = el('div', { class: 'fields', id: 'shape-params' });
-  private readonly vertices = el('input', { id: 'tissue-vertices', type: 'number', min: 50, step: 100, value: 6000 });
-  // mechanism
-  private readonly model = el('select', { id: 'mechanism-model', 'aria-label': 'kinetics' });
-  private readonly speciesInput = el('input', { id: 'mechanism-species', type: 'text', value: 'u, v' });
-  private readonly custom = el('div', { class: 'fields', id: 'own-formulas' });
-  private readonly params = el('div', { class: 'fields', id: 'mechanism-params' });
-  private readonly diffusion = el('div', { class: 'fields', id: 'mechanism-diffusion' });
-  // growth
-  private readonly law = el('select', { id: 'growth-law', 'aria-label': 'growth law' });
-  private readonly rate = el('input', { id: 'growth-rate', type: 'text', value: '0.0001' });
-  private readonly rates = el('input', { id: 'growth-rates', type: 'text', value: '0.0002, 0, 0', title: 'relative growth rates along x, y, z' });
-  private readonly refine = el('input', { id: 'growth-refine', type: 'checkbox', checked: true });
-  // start
-  private readonly seed = el('input', { id: 'start-seed', type: 'number', value: 7, min: 0 });
-  private readonly noise = el('input', { id: 'start-noise', type: 'text', value: '0.01' });
-  private readonly spots = el('input', { id: 'start-spots', type: 'number', value: 6, min: 0 });
-  private readonly spotRadius = el('input', { id: 'start-spot-radius', type: 'text', value: '0.03' });
-  private readonly spotValues = el('div', { class: 'fields', id: 'start-spot-values' });
-  // clock
-  private readonly scheme = el('select', { id: 'clock-scheme', 'aria-label': 'scheme' });
-  private readonly step = el('input', { id: 'clock-step', type: 'text', value: '1', placeholder: 'auto' });
-  private readonly end = el('input', { id: 'clock-end', type: 'text', value: '8000' });
-  private readonly every = el('input', { id: 'clock-every', type: 'text', value: '200' });
+  private readonly f = createFormFields();
 
   constructor(onChange: () => void) {
     this.onChange = onChange;
-    for (const s of ['built-in shape', 'opened mesh file']) this.source.append(el('option', { value: s, text: s }));
-    for (const s of Object.keys(SHAPES)) this.shape.append(el('option', { value: s, text: s, selected: s === 'sphere' }));
-    for (const m of [...Object.keys(MODELS), CUSTOM]) this.model.append(el('option', { value: m, text: m === CUSTOM ? 'own formulas…' : `${m} — ${MODELS[m].title.split(':')[0]}`, selected: m === 'gray-scott' }));
-    for (const l of ['none', 'uniform', 'anisotropic']) this.law.append(el('option', { value: l, text: l }));
-    for (const s of ['imex', 'explicit']) this.scheme.append(el('option', { value: s, text: s === 'imex' ? 'implicit–explicit' : 'explicit' }));
+    for (const s of ['built-in shape', 'opened mesh file']) this.f.source.append(el('option', { value: s, text: s }));
+    for (const s of Object.keys(SHAPES)) this.f.shape.append(el('option', { value: s, text: s, selected: s === 'sphere' }));
+    for (const m of [...Object.keys(MODELS), CUSTOM]) this.f.model.append(el('option', { value: m, text: m === CUSTOM ? 'own formulas…' : `${m} — ${MODELS[m].title.split(':')[0]}`, selected: m === 'gray-scott' }));
+    for (const l of ['none', 'uniform', 'anisotropic']) this.f.law.append(el('option', { value: l, text: l }));
+    for (const s of ['imex', 'explicit']) this.f.scheme.append(el('option', { value: s, text: s === 'imex' ? 'implicit–explicit' : 'explicit' }));
     this.text = el('textarea', { id: 'scenario-text', spellcheck: false, rows: 16, 'aria-label': 'scenario text' });
     this.formulaMessages = el('div', { class: 'messages', id: 'formula-messages', role: 'status' });
-    const section = (title: string, ...rows: Node[]) => el('details', { open: true, class: 'section' }, el('summary', { text: title }), ...rows);
-    const row = (label: string, input: HTMLElement, hint?: string) => el('label', { class: 'row' }, el('span', { text: label }), input, hint ? el('small', { text: hint }) : null);
     this.root = el('form', { id: 'scenario-form', autocomplete: 'off' },
       section('Tissue',
-        row('from', this.source),
-        row('shape', this.shape),
-        this.shapeParams,
-        row('vertices', this.vertices, 'target count'),
+        row('from', this.f.source),
+        row('shape', this.f.shape),
+        this.f.shapeParams,
+        row('vertices', this.f.vertices, 'target count'),
         el('p', { class: 'hint', id: 'mesh-file-hint', text: 'Open a mesh file (PLY, OBJ, STL, OFF) with the button above, or drop it on the surface.' }),
       ),
       section('Mechanism',
-        row('kinetics', this.model),
-        el('div', { id: 'own-species-row' }, row('species', this.speciesInput, 'names, comma-separated')),
-        this.custom,
-        el('h4', { text: 'parameters' }), this.params,
-        el('h4', { text: 'diffusion' }), this.diffusion,
+        row('kinetics', this.f.model),
+        el('div', { id: 'own-species-row' }, row('species', this.f.speciesInput, 'names, comma-separated')),
+        this.f.custom,
+        el('h4', { text: 'parameters' }), this.f.params,
+        el('h4', { text: 'diffusion' }), this.f.diffusion,
         this.formulaMessages,
       ),
       section('Growth',
-        row('law', this.law),
-        row('rate', this.rate, 'relative length growth per unit time'),
-        row('rates x, y, z', this.rates),
-        row('refine', this.refine, 'split triangles as they stretch'),
+        row('law', this.f.law),
+        row('rate', this.f.rate, 'relative length growth per unit time'),
+        row('rates x, y, z', this.f.rates),
+        row('refine', this.f.refine, 'split triangles as they stretch'),
       ),
       section('Start',
-        row('seed', this.seed),
-        row('noise', this.noise, 'uniform ±amplitude'),
-        row('spots', this.spots, 'count'),
-        row('spot radius', this.spotRadius),
-        this.spotValues,
+        this.f.startValues,
+        row('seed', this.f.seed),
+        row('noise', this.f.noise, 'uniform ±amplitude'),
+        row('spots', this.f.spots, 'count'),
+        row('spot radius', this.f.spotRadius),
+        this.f.spotValues,
       ),
       section('Clock',
-        row('scheme', this.scheme),
-        row('step', this.step, 'empty: automatic'),
-        row('end time', this.end),
-        row('frame every', this.every),
+        row('scheme', this.f.scheme),
+        row('step', this.f.step, 'empty: automatic'),
+        row('end time', this.f.end),
+        row('frame every', this.f.every),
       ),
       el('details', { class: 'section', id: 'text-section' },
         el('summary', { text: 'Scenario text' }),
-        el('p', { class: 'warning', id: 'text-mode-note', text: 'The scenario text is in use: the form above is not. “Back to the form” returns to it.' }),
+        el('p', { class: 'warning', id: 'text-mode-note', text: TEXT_NOTE }),
         el('p', { class: 'hint', text: 'The scenario the form writes. Edit it, or paste any scenario, then press “Set up from text”.' }),
         this.text,
         el('button', { type: 'button', id: 'use-text', text: 'Set up from text' }),
@@ -114,15 +91,16 @@ export class ScenarioForm {
     this.root.addEventListener('submit', (e) => e.preventDefault());
     this.root.addEventListener('input', (e) => {
       if (e.target === this.text) return;
-      if (e.target === this.shape) this.fillShapeParams();
-      if (e.target === this.model) this.fillModel();
-      if (e.target === this.speciesInput) this.fillCustom();
+      if (e.target === this.f.shape) this.fillShapeParams();
+      if (e.target === this.f.model) this.fillModel();
+      if (e.target === this.f.speciesInput) this.fillCustom();
       this.changed();
     });
     this.root.querySelector('#use-form')!.addEventListener('click', () => { this.textMode = false; this.root.classList.remove('text-mode'); this.changed(); });
+    this.text.addEventListener('input', () => { (this.root.querySelector('#text-mode-note') as HTMLElement).textContent = TEXT_NOTE; });
     this.fillShapeParams();
     this.fillModel();
-    (this.shapeParams.querySelector('[data-param="radius"]') as HTMLInputElement).value = '0.25';
+    (this.f.shapeParams.querySelector('[data-param="radius"]') as HTMLInputElement).value = '0.25';
     this.setParam('F', '0.03');
     this.setParam('k', '0.062');
     this.changed();
@@ -133,11 +111,44 @@ export class ScenarioForm {
     return this.textMode ? this.text.value : this.text.value = this.write();
   }
 
+  /**
+   * Show a scenario (an example, a run's): its settings in the fields where the form has them. When it
+   * has settings the form cannot show, its text stays in use and the note says which; returns them.
+   */
+  showScenario(text: string): string[] {
+    let sc: Scenario;
+    try {
+      sc = parse(text) as Scenario;
+      if (!sc || typeof sc !== 'object') throw new Error('not a scenario');
+    } catch {
+      this.useText(text);
+      return ['(the text is not a scenario the form can read)'];
+    }
+    this.textMode = true; // the text is not rewritten while the fields fill
+    const unshown = scenarioIntoForm(this.f, sc, {
+      shapeChosen: () => this.fillShapeParams(),
+      modelChosen: () => this.fillModel(),
+      customSpecies: () => this.fillCustom(),
+      customModel: CUSTOM,
+      paramRow: (name, value) => this.fieldRow(name, value, 'parameter', 'param'),
+    });
+    if (unshown.length) {
+      this.useText(text);
+      (this.root.querySelector('#text-mode-note') as HTMLElement).textContent = `This scenario runs from its text: the form shows its settings but not ${unshown.join(', ')}. “Back to the form” would run what the form shows instead.`;
+    } else {
+      this.textMode = false;
+      this.root.classList.remove('text-mode');
+    }
+    this.changed();
+    return unshown;
+  }
+
   useText(text?: string): void {
     if (text !== undefined) this.text.value = text;
     this.textMode = true;
     this.root.classList.add('text-mode');
     (this.root.querySelector('#text-section') as HTMLDetailsElement).open = true;
+    this.changed();
   }
 
   get inTextMode(): boolean {
@@ -146,89 +157,99 @@ export class ScenarioForm {
 
   setMesh(mesh: OpenedMesh | undefined): void {
     this.mesh = mesh;
-    if (mesh) this.source.value = 'opened mesh file';
+    if (mesh) this.f.source.value = 'opened mesh file';
     (this.root.querySelector('#mesh-file-hint') as HTMLElement).textContent = mesh ? `opened: ${mesh.name} (${mesh.vertices} vertices)` : 'Open a mesh file (PLY, OBJ, STL, OFF) with the button above, or drop it on the surface.';
     this.changed();
   }
 
   setParam(name: string, value: string): void {
-    const input = this.params.querySelector(`[data-param="${name}"]`) as HTMLInputElement | null;
+    const input = this.f.params.querySelector(`[data-param="${name}"]`) as HTMLInputElement | null;
     if (input) input.value = value;
   }
 
   /** Species names of the current mechanism. */
   species(): string[] {
-    return this.model.value === CUSTOM ? this.speciesInput.value.split(',').map((s) => s.trim()).filter(Boolean) : [...MODELS[this.model.value].species];
+    return this.f.model.value === CUSTOM ? this.f.speciesInput.value.split(',').map((s) => s.trim()).filter(Boolean) : [...MODELS[this.f.model.value].species];
   }
 
   /** The values the seed brush sets (the spot values), per species; null leaves a species alone. */
   spotValuesBySpecies(): (number | null)[] {
     return this.species().map((s) => {
-      const input = this.spotValues.querySelector(`[data-species="${s}"]`) as HTMLInputElement | null;
+      const input = this.f.spotValues.querySelector(`[data-species="${s}"]`) as HTMLInputElement | null;
       const v = input && input.value.trim() !== '' ? Number(input.value) : NaN;
       return Number.isFinite(v) ? v : null;
     });
   }
 
   private changed() {
-    const own = this.model.value === CUSTOM;
+    const own = this.f.model.value === CUSTOM;
     (this.root.querySelector('#own-species-row') as HTMLElement).hidden = !own;
-    this.custom.hidden = !own;
-    const fromShape = this.source.value === 'built-in shape';
-    this.shape.disabled = !fromShape;
-    this.vertices.disabled = !fromShape;
-    this.shapeParams.hidden = !fromShape;
-    const law = this.law.value;
-    this.rate.disabled = law !== 'uniform';
-    this.rates.disabled = law !== 'anisotropic';
-    this.refine.disabled = law === 'none';
+    this.f.custom.hidden = !own;
+    // while the text is in use the fields only show it (disabled, so read-only and out of the tab order)
+    for (const c of this.root.querySelectorAll<HTMLInputElement | HTMLSelectElement | HTMLButtonElement>('.section:not(#text-section) :is(input, select, button)')) c.disabled = this.textMode;
+    const fromShape = this.f.source.value === 'built-in shape';
+    this.f.shape.disabled ||= !fromShape;
+    this.f.vertices.disabled ||= !fromShape;
+    this.f.shapeParams.hidden = !fromShape;
+    const law = this.f.law.value;
+    this.f.rate.disabled ||= law !== 'uniform';
+    this.f.rates.disabled ||= law !== 'anisotropic';
+    this.f.refine.disabled ||= law === 'none';
     this.checkFormulas();
     if (!this.textMode) this.text.value = this.write();
     this.onChange();
   }
 
   private fillShapeParams() {
-    this.shapeParams.replaceChildren();
-    const def = SHAPES[this.shape.value];
+    this.f.shapeParams.replaceChildren();
+    const def = SHAPES[this.f.shape.value];
     for (const [k, p] of Object.entries(def.parameters)) {
       if (k === 'frequency' || k === 'cells') continue; // chosen from the vertex target
-      this.shapeParams.append(el('label', { class: 'row' }, el('span', { text: k }), el('input', { type: 'number', step: 'any', value: p.default, 'data-param': k, title: p.description })));
+      this.f.shapeParams.append(el('label', { class: 'row' }, el('span', { text: k, title: k }), el('input', { type: 'number', step: 'any', value: p.default, 'data-param': k, title: p.description })));
     }
   }
 
   private fillModel() {
-    const own = this.model.value === CUSTOM;
-    if (own) this.fillCustom();
-    const m = MODELS[this.model.value];
-    this.params.replaceChildren();
-    if (m) for (const [k, p] of Object.entries(m.parameters)) this.params.append(this.fieldRow(k, String(p.default), p.description, 'param'));
+    // own formulas: their parameter list (with "+ parameter") is made by fillCustom, and kept
+    if (this.f.model.value === CUSTOM) {
+      // a new mechanism: a clock that suits the default formulas (rates of order 1)
+      Object.assign(this.f.step, { value: '0.01' });
+      Object.assign(this.f.end, { value: '20' });
+      Object.assign(this.f.every, { value: '0.5' });
+      Object.assign(this.f.spots, { value: '0' });
+      return this.fillCustom(false);
+    }
+    const m = MODELS[this.f.model.value];
+    this.f.params.replaceChildren();
+    if (m) for (const [k, p] of Object.entries(m.parameters)) this.f.params.append(this.fieldRow(k, String(p.default), p.description, 'param'));
     this.fillDiffusion();
     if (m) {
-      const end = defaultEnd(this.model.value);
-      this.end.value = String(end);
-      this.every.value = String(Number((end / 40).toPrecision(3)));
-      this.step.value = String(m.suggestedStep ?? '');
-      this.scheme.value = 'imex';
-      const gs = this.model.value === 'gray-scott';
-      this.spots.value = gs ? '6' : '0';
-      this.noise.value = '0.01';
+      const end = defaultEnd(this.f.model.value);
+      this.f.end.value = String(end);
+      this.f.every.value = String(Number((end / 40).toPrecision(3)));
+      this.f.step.value = String(m.suggestedStep ?? '');
+      this.f.scheme.value = 'imex';
+      const gs = this.f.model.value === 'gray-scott';
+      this.f.spots.value = gs ? '6' : '0';
+      this.f.noise.value = '0.01';
     }
     this.fillSpotValues();
   }
 
-  private fillCustom() {
+  /** Own formulas: a rate per species, the parameters (those typed before, unless a built-in model's), start values. */
+  private fillCustom(keepParams = true) {
     const species = this.species();
-    const old = Object.fromEntries([...this.custom.querySelectorAll<HTMLInputElement>('[data-reaction]')].map((i) => [i.dataset.reaction!, i.value]));
-    this.custom.replaceChildren(...species.map((s, k) => el('label', { class: 'row' }, el('span', { text: `d${s}/dt =` }), el('input', { type: 'text', 'data-reaction': s, value: old[s] ?? (k === 0 ? `a - ${s} + ${s}^2*${species[1] ?? s}` : `b - ${species[0]}^2*${s}`), class: 'formula' }))));
-    const oldParams = Object.fromEntries([...this.params.querySelectorAll<HTMLInputElement>('[data-param]')].map((i) => [i.dataset.param!, i.value]));
-    this.params.replaceChildren(
+    const old = Object.fromEntries([...this.f.custom.querySelectorAll<HTMLInputElement>('[data-reaction]')].map((i) => [i.dataset.reaction!, i.value]));
+    this.f.custom.replaceChildren(...species.map((s, k) => el('label', { class: 'row' }, el('span', { text: `d${s}/dt =` }), el('input', { type: 'text', 'data-reaction': s, value: old[s] ?? (k === 0 ? `a - ${s} + ${s}^2*${species[1] ?? s}` : `b - ${species[0]}^2*${s}`), class: 'formula' }))));
+    const oldParams = keepParams ? Object.fromEntries([...this.f.params.querySelectorAll<HTMLInputElement>('[data-param]')].map((i) => [i.dataset.param!, i.value])) : {};
+    this.f.params.replaceChildren(
       ...Object.entries({ a: '0.1', b: '0.9', ...oldParams }).map(([k, v]) => this.fieldRow(k, v, 'parameter', 'param')),
       el('button', { type: 'button', id: 'add-parameter', text: '+ parameter' }),
     );
-    this.params.querySelector('#add-parameter')!.addEventListener('click', () => {
+    this.f.params.querySelector('#add-parameter')!.addEventListener('click', () => {
       const name = prompt('parameter name (a letter, then letters, digits or _)');
       if (name && /^[A-Za-z][A-Za-z0-9_]*$/.test(name)) {
-        this.params.insertBefore(this.fieldRow(name, '1', 'parameter', 'param'), this.params.lastChild);
+        this.f.params.insertBefore(this.fieldRow(name, '1', 'parameter', 'param'), this.f.params.lastChild);
         this.changed();
       }
     });
@@ -237,24 +258,38 @@ export class ScenarioForm {
   }
 
   private fillDiffusion() {
-    const m = MODELS[this.model.value];
-    this.diffusion.replaceChildren(...this.species().map((s, k) => this.fieldRow(s, m ? String(m.diffusion[s]) : k === 0 ? '1' : '40', `diffusion of ${s}`, 'diffusion')));
+    const m = MODELS[this.f.model.value];
+    this.f.diffusion.replaceChildren(...this.species().map((s, k) => this.fieldRow(s, m ? String(m.diffusion[s]) : k === 0 ? '1' : '40', `diffusion of ${s}`, 'diffusion')));
+  }
+
+  /** Own formulas have no closed-form rest state: the form asks a start value per species (the default formulas' rest state: u = a + b, v = b/(a + b)²). */
+  private fillStartValues() {
+    const own = this.f.model.value === CUSTOM;
+    const old = Object.fromEntries([...this.f.startValues.querySelectorAll<HTMLInputElement>('[data-start]')].map((i) => [i.dataset.start!, i.value]));
+    const defaults = ['1', '0.9'];
+    this.f.startValues.replaceChildren(...(own ? this.species() : []).map((s, k) => el('label', { class: 'row' }, el('span', { text: `start ${s}` }), el('input', { type: 'text', 'data-start': s, value: old[s] ?? defaults[k] ?? '1', class: 'formula', title: `the value of ${s} everywhere at t = 0 (a number or a formula in x, y, z), before noise and spots` }))));
+  }
+
+  /** Start values of own formulas by species (text: a number or a formula). */
+  startValuesBySpecies(): Record<string, string> {
+    return Object.fromEntries([...this.f.startValues.querySelectorAll<HTMLInputElement>('[data-start]')].map((i) => [i.dataset.start!, i.value.trim()]));
   }
 
   private fillSpotValues() {
-    const gs = this.model.value === 'gray-scott';
+    this.fillStartValues();
+    const gs = this.f.model.value === 'gray-scott';
     const defaults: Record<string, string> = gs ? { u: '0.5', v: '0.25' } : {};
-    this.spotValues.replaceChildren(...this.species().map((s) => el('label', { class: 'row' }, el('span', { text: `spot ${s}` }), el('input', { type: 'text', 'data-species': s, value: defaults[s] ?? '', placeholder: 'unchanged' }))));
+    this.f.spotValues.replaceChildren(...this.species().map((s) => el('label', { class: 'row' }, el('span', { text: `spot ${s}` }), el('input', { type: 'text', 'data-species': s, value: defaults[s] ?? '', placeholder: 'unchanged' }))));
   }
 
   private fieldRow(name: string, value: string, title: string, kind: 'param' | 'diffusion'): HTMLElement {
-    return el('label', { class: 'row' }, el('span', { text: name }), el('input', { type: 'text', value, title, class: 'formula', [`data-${kind}`]: name }));
+    return el('label', { class: 'row' }, el('span', { text: name, title: name }), el('input', { type: 'text', value, title, class: 'formula', [`data-${kind}`]: name }));
   }
 
   /** Parse every formula as it is typed; messages name the field and the column. */
   private checkFormulas() {
     const species = this.species();
-    const params = [...this.params.querySelectorAll<HTMLInputElement>('[data-param]')].map((i) => i.dataset.param!);
+    const params = [...this.f.params.querySelectorAll<HTMLInputElement>('[data-param]')].map((i) => i.dataset.param!);
     const messages: string[] = [];
     const check = (input: HTMLInputElement, what: string, symbols: string[]) => {
       input.classList.remove('invalid');
@@ -267,18 +302,19 @@ export class ScenarioForm {
         messages.push(`${what}: ${(e as Error).message}`);
       }
     };
-    for (const i of this.custom.querySelectorAll<HTMLInputElement>('[data-reaction]')) check(i, `d${i.dataset.reaction}/dt`, [...species, ...params, 'x', 'y', 'z', 't']);
-    for (const i of this.params.querySelectorAll<HTMLInputElement>('[data-param]')) check(i, `parameter ${i.dataset.param}`, ['x', 'y', 'z']);
-    for (const i of this.diffusion.querySelectorAll<HTMLInputElement>('[data-diffusion]')) check(i, `diffusion of ${i.dataset.diffusion}`, [...params, 'x', 'y', 'z']);
-    if (this.model.value === CUSTOM && new Set(species).size !== species.length) messages.push('species: each name once');
+    for (const i of this.f.custom.querySelectorAll<HTMLInputElement>('[data-reaction]')) check(i, `d${i.dataset.reaction}/dt`, [...species, ...params, 'x', 'y', 'z', 't']);
+    for (const i of this.f.params.querySelectorAll<HTMLInputElement>('[data-param]')) check(i, `parameter ${i.dataset.param}`, ['x', 'y', 'z']);
+    for (const i of this.f.diffusion.querySelectorAll<HTMLInputElement>('[data-diffusion]')) check(i, `diffusion of ${i.dataset.diffusion}`, [...params, 'x', 'y', 'z']);
+    for (const i of this.f.startValues.querySelectorAll<HTMLInputElement>('[data-start]')) check(i, `start value of ${i.dataset.start}`, [...params, 'x', 'y', 'z']);
+    if (this.f.model.value === CUSTOM && new Set(species).size !== species.length) messages.push('species: each name once');
     // number fields: flagged where they are, never written as NaN
     for (const [input, what] of this.numberFields()) {
       input.classList.remove('invalid');
       if (input.disabled) continue;
-      const parts = input === this.rates ? input.value.split(',') : [input.value];
-      if (parts.some((t) => !Number.isFinite(Number(t.trim())) || t.trim() === '') || (input === this.rates && parts.length !== 3)) {
+      const parts = input === this.f.rates ? input.value.split(',') : [input.value];
+      if (parts.some((t) => !Number.isFinite(Number(t.trim())) || t.trim() === '') || (input === this.f.rates && parts.length !== 3)) {
         input.classList.add('invalid');
-        messages.push(`${what}: ${input === this.rates ? 'three numbers, e.g. 0.0002, 0, 0' : `a number, not "${input.value.trim()}"`}`);
+        messages.push(`${what}: ${input === this.f.rates ? 'three numbers, e.g. 0.0002, 0, 0' : `a number, not "${input.value.trim()}"`}`);
       }
     }
     this.formulaMessages.replaceChildren(...messages.map((m) => el('p', { class: 'error', text: m })));
@@ -286,67 +322,13 @@ export class ScenarioForm {
 
   /** The form's number fields with the words that name them (the time step may be left empty: automatic). */
   private numberFields(): [HTMLInputElement, string][] {
-    const fields: [HTMLInputElement, string][] = [[this.vertices, 'vertices'], [this.noise, 'noise'], [this.spots, 'spots'], [this.spotRadius, 'spot radius'], [this.end, 'end time'], [this.every, 'frame every'], [this.rate, 'growth rate'], [this.rates, 'growth rates']];
-    if (this.step.value.trim() !== '') fields.push([this.step, 'step']);
+    const fields: [HTMLInputElement, string][] = [[this.f.vertices, 'vertices'], [this.f.noise, 'noise'], [this.f.spots, 'spots'], [this.f.spotRadius, 'spot radius'], [this.f.end, 'end time'], [this.f.every, 'frame every'], [this.f.rate, 'growth rate'], [this.f.rates, 'growth rates']];
+    if (this.f.step.value.trim() !== '') fields.push([this.f.step, 'step']);
     return fields;
-  }
-
-  /** A number field's value, or its text when it is not a number (the scenario's check then names it; never NaN). */
-  private static number(input: HTMLInputElement): number {
-    const t = input.value.trim();
-    return (t !== '' && Number.isFinite(Number(t)) ? Number(t) : t) as number;
-  }
-
-  /** Number if the text is one, else the text (a formula). */
-  private static value(t: string): number | string {
-    const s = t.trim();
-    return s !== '' && Number.isFinite(Number(s)) ? Number(s) : s;
   }
 
   /** The scenario the form describes, as YAML. */
   write(): string {
-    const num = ScenarioForm.number;
-    const sc: Scenario = { name: 'viewer', seed: Number(this.seed.value) || 0, mesh: {}, kinetics: {}, time: { end: num(this.end) } } as Scenario;
-    if (this.source.value === 'built-in shape') {
-      const params: Record<string, number> = {};
-      for (const i of this.shapeParams.querySelectorAll<HTMLInputElement>('[data-param]')) {
-        const def = SHAPES[this.shape.value]?.parameters[i.dataset.param!];
-        if (def && Number(i.value) !== def.default) params[i.dataset.param!] = Number(i.value);
-      }
-      sc.mesh = { shape: this.shape.value, ...(Object.keys(params).length ? { params } : {}), vertices: Number.isFinite(Number(this.vertices.value)) ? Math.round(Number(this.vertices.value)) : num(this.vertices) };
-    } else {
-      sc.mesh = { file: this.mesh?.name ?? 'open-a-mesh-file.ply' };
-    }
-    const parameters: Record<string, number | string> = {};
-    for (const i of this.params.querySelectorAll<HTMLInputElement>('[data-param]')) parameters[i.dataset.param!] = ScenarioForm.value(i.value);
-    if (this.model.value === CUSTOM) {
-      const reactions: Record<string, string> = {};
-      for (const i of this.custom.querySelectorAll<HTMLInputElement>('[data-reaction]')) reactions[i.dataset.reaction!] = i.value.trim();
-      sc.kinetics = { species: this.species(), reactions, parameters };
-    } else {
-      sc.kinetics = { model: this.model.value, parameters };
-    }
-    const diffusion: Record<string, number | string> = {};
-    const m = MODELS[this.model.value];
-    for (const i of this.diffusion.querySelectorAll<HTMLInputElement>('[data-diffusion]')) {
-      const v = ScenarioForm.value(i.value);
-      if (!m || String(m.diffusion[i.dataset.diffusion!]) !== String(v)) diffusion[i.dataset.diffusion!] = v;
-    }
-    if (Object.keys(diffusion).length) sc.diffusion = diffusion;
-    const initial: NonNullable<Scenario['initial']> = { values: 'steady' };
-    const noise = num(this.noise);
-    if (typeof noise !== 'number' || noise > 0) initial.noise = noise;
-    const count = Math.round(Number(this.spots.value));
-    const values: Record<string, number> = {};
-    this.species().forEach((s, k) => { const v = this.spotValuesBySpecies()[k]; if (v !== null) values[s] = v; });
-    if (count > 0 && Object.keys(values).length) initial.spots = { count, radius: num(this.spotRadius), values };
-    sc.initial = initial;
-    sc.time = { scheme: this.scheme.value as 'imex' | 'explicit', ...(this.step.value.trim() ? { step: num(this.step) } : {}), end: num(this.end) };
-    sc.output = { every: num(this.every), colour: m?.display ?? this.species()[this.species().length - 1] };
-    const law = this.law.value;
-    if (law === 'uniform') sc.growth = { law: 'uniform', rate: num(this.rate) };
-    if (law === 'anisotropic') sc.growth = { law: 'anisotropic', rates: this.rates.value.split(',').map((t) => (Number.isFinite(Number(t.trim())) && t.trim() !== '' ? Number(t.trim()) : t.trim())) as unknown as [number, number, number] };
-    if (sc.growth && this.refine.checked) sc.growth.refine = { edgeGrowth: 1.6 };
-    return `# written by the Placode viewer; run it with: placode run scenario.yaml --out DIR\n${stringify(sc)}`;
+    return scenarioFromForm(this.f, { mesh: this.mesh, custom: this.f.model.value === CUSTOM, species: this.species(), spotValues: this.spotValuesBySpecies(), startValues: this.startValuesBySpecies() });
   }
 }

@@ -16,8 +16,8 @@ function svg<K extends keyof SVGElementTagNameMap>(tag: K, attrs: Record<string,
 }
 
 export function drawDispersion(target: HTMLElement, view: StabilityView, onMode: (index: number) => void): void {
-  const W = 520, H = 200, L = 56, R = 12, T = 12, B = 34;
-  const root = svg('svg', { viewBox: `0 0 ${W} ${H}`, width: '100%', id: 'dispersion-plot', role: 'img', 'aria-label': 'dispersion relation with surface eigenvalues' });
+  const W = 520, H = 210, L = 74, R = 16, T = 12, B = 38;
+  const root = svg('svg', { viewBox: `0 0 ${W} ${H}`, preserveAspectRatio: 'xMinYMin meet', id: 'dispersion-plot', role: 'img', 'aria-label': 'dispersion relation with surface eigenvalues' });
   const k2 = view.dispersion.k2, rate = view.dispersion.rate;
   if (!k2.length) {
     target.replaceChildren(root);
@@ -46,9 +46,10 @@ export function drawDispersion(target: HTMLElement, view: StabilityView, onMode:
     const growing = r > 0;
     const mark = svg('circle', { cx: x(l), cy: y(Math.max(lo, Math.min(hi, r))), r: growing ? 4 : 2.5, fill: growing ? '#1d5a8c' : '#fff', stroke: '#1d5a8c', class: 'mode-mark', 'data-mode': i, tabindex: 0 });
     const title = svg('title', {});
-    title.textContent = `mode ${i}: λ = ${fmt(l)}, growth rate ${fmt(r)} — click to paint`;
+    title.textContent = `mode ${i}: λ = ${fmt(l)}, perturbation growth rate ${fmt(r)} — click or press Enter to paint`;
     mark.append(title);
     mark.addEventListener('click', () => onMode(i));
+    mark.addEventListener('keydown', (e) => { if (e.key === 'Enter' || e.key === ' ') { e.preventDefault(); onMode(i); } });
     root.append(mark);
   });
   const label = (text: string, attrs: Record<string, string | number>) => {
@@ -56,8 +57,8 @@ export function drawDispersion(target: HTMLElement, view: StabilityView, onMode:
     t.textContent = text;
     root.append(t);
   };
-  label('k² (surface eigenvalue λ)', { x: (L + W - R) / 2, y: H - 6, 'text-anchor': 'middle' });
-  label('growth rate', { x: 12, y: (T + H - B) / 2, transform: `rotate(-90 12 ${(T + H - B) / 2})`, 'text-anchor': 'middle' });
+  label(`k² (surface eigenvalue λ${view.units ? `, 1/${view.units}²` : ''})`, { x: (L + W - R) / 2, y: H - 6, 'text-anchor': 'middle', class: 'axis-title' });
+  label('σ (growth of a perturbation)', { x: 14, y: (T + H - B) / 2, transform: `rotate(-90 14 ${(T + H - B) / 2})`, 'text-anchor': 'middle', class: 'axis-title' });
   label(fmt(hi - pad), { x: L - 4, y: y(hi - pad) + 4, 'text-anchor': 'end' });
   label('0', { x: L - 4, y: y(0) + 4, 'text-anchor': 'end' });
   label(fmt(lo + pad), { x: L - 4, y: y(lo + pad) + 4, 'text-anchor': 'end' });
