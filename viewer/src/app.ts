@@ -6,68 +6,28 @@
  */
 import { SurfaceView } from './SurfaceView.ts';
 import { ScenarioForm } from './scenarioForm.ts';
-import { drawDispersion } from './stabilityPlot.ts';
+import { showStability } from './stabilityPanel.ts';
+import { app, frameOf, type Frame } from './appState.ts';
+import { say, notice, clearNotice, clearProblems } from './messages.ts';
 import { drawColorBar } from './colorBar.ts';
 import { el, byId, download, fmt } from './dom.ts';
-import type { FromSimulation, ToSimulation, FromAnalysis, ToAnalysis, StabilityView } from './protocol.ts';
+import type { FromSimulation, ToSimulation, FromAnalysis, ToAnalysis } from './protocol.ts';
 import { colorizeField, COLORMAP_NAMES, type ColormapName } from '../../solver/io/colormap.ts';
 import { parseMeshFile } from '../../solver/io/parseMeshFile.ts';
 import { meshStatistics } from '../../solver/mesh/meshStatistics.ts';
 import { speciesFromProperties } from '../../solver/run/runFiles.ts';
-import { encodeSnapshot } from '../../solver/io/encodeSnapshot.ts';
-import { speciesField } from '../../solver/integrate/ReactionDiffusionSystem.ts';
 import type { MeshFileContents } from '../../solver/scenario/scenarioMesh.ts';
 import type { Mesh } from '../../solver/mesh/Mesh.ts';
 import { VIEWER_PAINT_INTERVAL_MS } from '../../solver/defaults.ts';
 import { PaintPacer } from './paintPacer.ts';
+import { paintingOf, TINY_CONTRAST, type Painting } from './painting.ts';
+import { exportPicture, exportColouredMesh } from './viewExport.ts';
 
 /** The example the viewer opens on. */
 const FIRST_EXAMPLE = 'limb-paddle-growing';
 const EXAMPLES = import.meta.glob('../../meshes/examples/*.yaml', { query: '?raw', import: 'default', eager: true }) as Record<string, string>;
 
-/** One picture of the timeline: a state on a surface. */
-interface Frame {
-  time: number;
-  mesh: Mesh;
-  fields: Record<string, Float64Array>;
-  /** a frame of a run directory not fetched yet */
-  file?: string;
-}
 
-/** What the tests (and a curious user, in the console) can read of the app. */
-interface AppState {
-  ready: boolean;
-  loaded: boolean;
-  running: boolean;
-  time: number;
-  step: number;
-  vertices: number;
-  species: string[];
-  frames: number;
-  view: 'live' | 'frame' | 'mode';
-  problems: string[];
-  messages: string[];
-  stability: StabilityView | null;
-  /** min, mean and max of the painted field as shown, and the time of the frame painted */
-  shown: { species: string; min: number; mean: number; max: number; vertices: number; extent: number; time: number; range: [number, number] } | null;
-  stepsPerSecond: number;
-  serverRun: { name: string; frames: number } | null;
-  /** milliseconds of the last brush dab (picking and gathering vertices; the BVH is built on the first) */
-  brushMs: number;
-  /** brush dabs that hit the surface and were sent to the worker */
-  strokes: number;
-  /** threads stepping the simulation */
-  threads: number;
-  /** paints of the live simulation so far (at most one per VIEWER_PAINT_INTERVAL_MS) */
-  paints: number;
-  /** the pacer's current least time between live paints: VIEWER_PAINT_INTERVAL_MS, longer when drawing is slow (5 × a frame's cost, at most 1 s) */
-  paintIntervalMs: number;
-  /** the WebGL renderer, and whether the surface is antialiased (not in software WebGL) */
-  webgl: { renderer: string; antialias: boolean } | null;
-}
-
-const app: AppState = { ready: false, loaded: false, running: false, time: 0, step: 0, vertices: 0, species: [], frames: 0, view: 'live', problems: [], messages: [], stability: null, shown: null, stepsPerSecond: 0, serverRun: null, brushMs: 0, strokes: 0, threads: 1, paints: 0, paintIntervalMs: VIEWER_PAINT_INTERVAL_MS, webgl: null };
-(window as unknown as { __placode: AppState }).__placode = app;
 
 const worker = new Worker(new URL('./simulationWorker.ts', import.meta.url), { type: 'module' });
 const send = (m: ToSimulation, transfer: Transferable[] = []) => worker.postMessage(m, transfer);
@@ -99,7 +59,7 @@ function onAnalysis(m: FromAnalysis) {
     case 'stability':
       analysing = false;
       app.stability = m.view;
-      showStability(m.view);
+      showStability(m.view, askMode);
       break;
     case 'mode':
       mode = { index: m.index, eigenvalue: m.eigenvalue, values: m.values };
@@ -119,33 +79,6 @@ app.webgl = view.gl;
 const openedFiles: Record<string, MeshFileContents> = {};
 const form = new ScenarioForm(() => { byId('setup').classList.add('pending'); if (app.ready) status(); });
 byId('scenario-panel').append(form.root);
-
-// ---- messages: all in the Messages tab (a warning or error repeated at once is kept once); errors of an
-// action also where it was taken (notice)
-function say(text: string, kind: 'info' | 'error' | 'warning' = 'info') {
-  if (kind !== 'info' && app.messages[0] === `${kind}: ${text}`) return;
-  const box = byId('messages');
-  const p = el('p', { class: kind, text });
-  box.prepend(p);
-  while (box.childElementCount > 12) box.lastElementChild!.remove();
-  app.messages.unshift(`${kind}: ${text}`);
-}
-/** Show a message beside the controls of the action that raised it (replacing the last one there), and log it. */
-function notice(where: 'transport-notice' | 'toolbar-notice', text: string, kind: 'error' | 'warning' | 'info' = 'error') {
-  const box = byId(where);
-  box.textContent = text;
-  box.className = `notice ${kind}`;
-  box.hidden = false;
-  say(text, kind);
-}
-function clearNotice(where: 'transport-notice' | 'toolbar-notice') {
-  byId(where).hidden = true;
-}
-
-function clearProblems() {
-  byId('problems').replaceChildren();
-  app.problems = [];
-}
 
 // ---- live state and what is shown
 let live: Frame | undefined;
@@ -171,43 +104,20 @@ function setSpecies(names: string[], preferred?: string) {
   speciesSelect.value = names.includes(before) ? before : preferred && names.includes(preferred) ? preferred : names[names.length - 1];
 }
 
-function fieldRange(values: Float64Array): [number, number] {
-  let lo = Infinity, hi = -Infinity;
-  for (let i = 0; i < values.length; i++) { const v = values[i]; if (v < lo) lo = v; if (v > hi) hi = v; }
-  return [lo, hi];
-}
-
-/** Below this spread (max − min over the largest |value|) a field is shown with that much colour range at least, and its spread is stated. */
-const TINY_CONTRAST = 0.01;
-
 /** The frame shown: the live one, or one of the timeline (an eigenmode is painted on the live one). */
 const shownFrame = () => (app.view === 'live' ? live : shown);
 
-/** What is painted on a frame, as on screen: the field or eigenmode, its label, colormap and colour range. */
-function painting(frame: Frame): { values: Float64Array; label: string; colormap: ColormapName; range: [number, number]; own: [number, number]; showMode: boolean; relative?: number } | undefined {
-  const showMode = app.view === 'mode' && mode !== undefined;
-  const label = showMode ? `mode ${mode!.index}` : speciesSelect.value;
-  const values = showMode ? mode!.values : frame.fields[label];
-  if (!values) return undefined;
-  const own = fieldRange(values);
-  if (showMode) {
-    const m = Math.max(Math.abs(own[0]), Math.abs(own[1]));
-    return { values, label, colormap: 'diverging', range: [-m, m], own, showMode };
-  }
-  let range: [number, number] =
-    rangeSelect.value === 'fixed' ? [Number(byId<HTMLInputElement>('range-min').value), Number(byId<HTMLInputElement>('range-max').value)]
-    : rangeSelect.value === 'run' && runRange ? [Math.min(runRange[0], own[0]), Math.max(runRange[1], own[1])]
-    : own;
-  // a field that hardly varies (noise around the rest state) is not stretched over the whole map:
-  // "each frame" spans at least TINY_CONTRAST of the field's size, and the caption says how small it is
-  const size = Math.max(Math.abs(own[0]), Math.abs(own[1]));
-  const relative = size > 0 ? (own[1] - own[0]) / size : 0;
-  if (rangeSelect.value === 'frame' && size > 0 && relative < TINY_CONTRAST) {
-    const mid = (own[0] + own[1]) / 2;
-    range = [mid - (TINY_CONTRAST * size) / 2, mid + (TINY_CONTRAST * size) / 2];
-  }
-  if (!(range[1] > range[0])) range = [range[0] - 0.5, range[0] + 0.5];
-  return { values, label, colormap: colormapSelect.value as ColormapName, range, own, showMode, relative };
+/** What is painted on a frame, as the toolbar asks. */
+function painting(frame: Frame): Painting | undefined {
+  const choice = rangeSelect.value as 'frame' | 'run' | 'fixed';
+  return paintingOf(frame.fields, {
+    mode: app.view === 'mode' ? mode : undefined,
+    species: speciesSelect.value,
+    colormap: colormapSelect.value as ColormapName,
+    range: choice,
+    fixed: [Number(byId<HTMLInputElement>('range-min').value), Number(byId<HTMLInputElement>('range-max').value)],
+    runRange,
+  });
 }
 
 /** Paint what is shown: a frame (live or recorded) or an eigenmode. */
@@ -375,11 +285,6 @@ function extent(p: Float64Array): number {
   return r;
 }
 
-function frameOf(time: number, mesh: Mesh, state: Float64Array, species: string[]): Frame {
-  const fields: Record<string, Float64Array> = {};
-  species.forEach((s, i) => (fields[s] = speciesField(state, species.length, i)));
-  return { time, mesh, fields };
-}
 
 /** Keep the timeline under ~400 MB: drop every other frame (the first and last stay). */
 function thinTimeline() {
@@ -493,22 +398,6 @@ view.onStroke = (stroke) => {
   app.strokes++;
 };
 
-// ---- stability
-function showStability(v: StabilityView) {
-  drawDispersion(byId('dispersion'), v, askMode);
-  const lines: string[] = [];
-  if (v.steadyState) lines.push(`steady state ${Object.entries(v.steadyState).map(([k, x]) => `${k} = ${fmt(x)}`).join(', ')}`);
-  const per = v.units ? ` 1/${v.units}²` : '';
-  lines.push(v.band ? `unstable band k² ∈ [${fmt(v.band[0])}, ${fmt(v.band[1])}]${per}, fastest k² = ${fmt(v.fastest!.k2)}${per} (wavelength 2π/k = ${fmt((2 * Math.PI) / Math.sqrt(v.fastest!.k2))}${v.units ? ` ${v.units}` : ''}; perturbations grow at rate σ = ${fmt(v.fastest!.rate)})` : 'no Turing band: the steady state is stable to every spatial mode (or unstable without diffusion)');
-  lines.push(v.predicted ? `predicted: mode ${v.predicted.index}, λ = ${fmt(v.predicted.eigenvalue)}, multiplicity ${v.predicted.multiplicity}` : v.band ? 'no surface mode falls in the band: this surface has no eigenvalue there (a larger or finer surface would)' : 'no surface mode grows from small disturbances');
-  if (!v.predicted) lines.push('A pattern can still form: linear analysis speaks of small disturbances only, and mechanisms such as Gray–Scott make spots from large local ones (the seeds of Induce) — finite-amplitude patterns this tab cannot predict.');
-  byId('stability-summary').replaceChildren(...[...lines, ...v.notes].map((t) => el('p', { text: t })));
-  byId('mode-list').replaceChildren(...v.unstable.slice(0, 40).map((m) => {
-    const b = el('button', { type: 'button', class: 'mode', 'data-mode': m.index, text: `${m.index}: λ ${fmt(m.eigenvalue)}, σ ${fmt(m.rate)}`, title: `paint mode ${m.index} (perturbation growth rate σ = ${fmt(m.rate)})` });
-    b.addEventListener('click', () => askMode(m.index));
-    return b;
-  }));
-}
 byId('show-live').addEventListener('click', () => { app.view = 'live'; timelineSource = timelineSource === 'server' ? 'server' : 'live'; paint(); });
 
 // ---- timeline
@@ -595,29 +484,18 @@ async function loadServerRun() {
   say(`loaded run ${info.name}: ${timeline.length} frames`);
 }
 
-// ---- export
+// ---- export: the view as a picture (with its colour bar), the coloured mesh as shown
 byId('export-png').addEventListener('click', () => {
   const w = Math.round(Number(byId<HTMLInputElement>('png-width').value)), h = Math.round(Number(byId<HTMLInputElement>('png-height').value));
   if (!(w >= 64 && h >= 64 && w <= 8192 && h <= 8192)) return say('PNG size: width and height from 64 to 8192 pixels', 'error');
-  const picture = view.renderAt(w, h);
   const frame = shownFrame();
-  const p = frame && painting(frame);
-  if (p) {
-    const scale = Math.max(1, Math.round(h / 700)); // whole pixels: every row of the bar one colour of the map
-    const bar = document.createElement('canvas');
-    drawColorBar(bar, p.colormap, p.range, p.label, scale, '#ffffff');
-    picture.getContext('2d')!.drawImage(bar, Math.round(w - bar.width - 10 * scale), Math.round((h - bar.height) / 2));
-  }
-  picture.toBlob((blob) => { if (blob) download('placode-view.png', blob, 'image/png'); }, 'image/png');
+  exportPicture(view, w, h, frame && painting(frame));
 });
-/** The coloured mesh as shown (colours as on screen; every species, and a painted eigenmode, as properties). */
 async function exportMesh(format: 'ply' | 'glb') {
   const frame = shownFrame();
   const p = frame && painting(frame);
   if (!frame || !p) return say('nothing to export yet', 'error');
-  const fields = p.showMode ? { ...frame.fields, [`mode${mode!.index}`]: p.values } : frame.fields;
-  const bytes = await encodeSnapshot(format, frame.mesh, fields, colorizeField(p.values, p.colormap, p.range), `placode viewer, t = ${frame.time}`);
-  download(`placode-view.${format}`, bytes as BlobPart, format === 'glb' ? 'model/gltf-binary' : 'application/octet-stream');
+  await exportColouredMesh(format, frame, p, mode?.index);
 }
 byId('export-ply').addEventListener('click', () => void exportMesh('ply'));
 byId('export-glb').addEventListener('click', () => void exportMesh('glb'));
