@@ -38,7 +38,7 @@ export class ScenarioForm {
     this.onChange = onChange;
     for (const s of ['built-in shape', 'opened mesh file']) this.f.source.append(el('option', { value: s, text: s }));
     for (const s of Object.keys(SHAPES)) this.f.shape.append(el('option', { value: s, text: s, selected: s === 'sphere' }));
-    for (const m of [...Object.keys(MODELS), CUSTOM]) this.f.model.append(el('option', { value: m, text: m === CUSTOM ? 'own formulas…' : `${m} — ${MODELS[m].title.split(':')[0]}`, selected: m === 'gray-scott' }));
+    for (const m of [...Object.keys(MODELS), CUSTOM]) this.f.model.append(el('option', { value: m, text: m === CUSTOM ? 'own formulas…' : MODELS[m].title.split(':')[0], title: m === CUSTOM ? 'your own species and rate formulas' : `${MODELS[m].title} (model: ${m})`, selected: m === 'gray-scott' }));
     for (const l of ['none', 'uniform', 'anisotropic']) this.f.law.append(el('option', { value: l, text: l }));
     for (const s of ['imex', 'explicit']) this.f.scheme.append(el('option', { value: s, text: s === 'imex' ? 'implicit–explicit' : 'explicit' }));
     this.text = el('textarea', { id: 'scenario-text', spellcheck: false, rows: 16, 'aria-label': 'scenario text' });
