@@ -58,6 +58,8 @@ export const ALIGNMENT_ROUNDS = 30;
 const ALIGNMENT_SAMPLES = 4000;
 /** Correspondences whose normals differ by more than this (cos 60°) are dropped. */
 const NORMAL_AGREEMENT = 0.5;
+/** Weight of a boundary vertex's correspondence, in units of its share of the area. */
+const BOUNDARY_WEIGHT = 20;
 /** Weight of one landmark, against the surface terms (which sum to 1 each way). */
 const LANDMARK_WEIGHT = 0.05;
 /** A triangle whose centre lies farther from the target than this fraction of its longest edge spans a gap (a chord's sagitta is far smaller). */
@@ -116,8 +118,10 @@ export function mapOntoSurface(source: Mesh, target: Mesh, options: SurfaceMapOp
       const near = closestDistance[i] === Infinity ? Infinity : Math.hypot(x[3 * i] - closest[3 * i], x[3 * i + 1] - closest[3 * i + 1], x[3 * i + 2] - closest[3 * i + 2]) * (1 + 1e-9) + 1e-12;
       closest[3 * i] = x[3 * i]; closest[3 * i + 1] = x[3 * i + 1]; closest[3 * i + 2] = x[3 * i + 2];
       if (sourceEdge.onBoundary[i] && !targetEdge.empty) {
+        // boundaries (a bud's open base) are curves the map must take onto each other: weighted up, or the
+        // surfaces' many points would let the base slide off its counterpart
         targetEdge.project(closest, i);
-        closestWeight[i] = weights[i];
+        closestWeight[i] = BOUNDARY_WEIGHT * weights[i];
         continue;
       }
       onTarget.project(closest, i, near);

@@ -8,7 +8,8 @@ import { saveMeshFile, loadMeshFile } from '../../solver/io/meshFiles.ts';
 import { mapOntoSurface, locateOnSurface } from '../../solver/growth/mapOntoSurface.ts';
 import { SurfaceProjector } from '../../solver/mesh/surfaceProjector.ts';
 import { edgeLengthStats } from '../../solver/mesh/edgeLengthStats.ts';
-import { meshArea } from '../../solver/mesh/triangleAreas.ts';
+import { meshArea, triangleAreas } from '../../solver/mesh/triangleAreas.ts';
+import { meshTopology } from '../../solver/mesh/meshTopology.ts';
 import type { Mesh } from '../../solver/mesh/Mesh.ts';
 
 let dir = '';
@@ -57,6 +58,22 @@ describe('carrying a surface onto a separately meshed later stage', () => {
     // the affine part took out the stretch: ≈ 1.3 along x, ≈ 1.2 along y (the paddle, most of the area)
     expect(map.transform.matrix[0]).toBeGreaterThan(1.2);
     expect(map.transform.matrix[4]).toBeGreaterThan(1.1);
+    // the open base is carried onto the stage's base (x = 0), and the row of triangles on it stretches like
+    // the rows beside it (the stalk is a cylinder whose radius and length both grow smoothly: no reason for
+    // the first row to differ; within 10 %)
+    const base = meshTopology(a).boundaryLoops[0];
+    for (const v of base) expect(Math.abs(map.positions[3 * v])).toBeLessThan(1e-9);
+    const onBase = new Set(base);
+    const A0 = triangleAreas(a), A1 = triangleAreas({ positions: map.positions, triangles: a.triangles });
+    const touching: number[] = [], next: number[] = [];
+    for (let t = 0; t < A0.length; t++) {
+      const corners = [0, 1, 2].map((k) => a.triangles[3 * t + k]);
+      const x = corners.reduce((acc, v) => acc + a.positions[3 * v], 0) / 3;
+      if (corners.some((v) => onBase.has(v))) touching.push(A1[t] / A0[t]);
+      else if (x < 0.3) next.push(A1[t] / A0[t]);
+    }
+    const median = (v: number[]) => v.sort((p, q) => p - q)[v.length >> 1];
+    expect(Math.abs(median(touching) / median(next) - 1)).toBeLessThan(0.1);
   });
 
   it('a marching-tetrahedra bud (terraces, slivers) 25 % longer, 7k → 11k vertices, maps without folds directly', () => {
