@@ -18,7 +18,7 @@ import { VERSION } from '../version.ts';
 export type { RunOptions, RunOutcome } from './writeRun.ts';
 
 /** Read, check and resolve a scenario file (meshes and previous runs found relative to it). */
-export function loadScenarioFile(file: string): { text: string; resolved: ResolvedScenario } {
+export function loadScenarioFile(file: string, progress?: (line: string) => void): { text: string; resolved: ResolvedScenario } {
   const text = readTextFile(file, 'scenario file');
   let source;
   try {
@@ -30,7 +30,7 @@ export function loadScenarioFile(file: string): { text: string; resolved: Resolv
     }
     throw e;
   }
-  return { text, resolved: resolveScenario(source, file, nodeScenarioEnvironment(file)) };
+  return { text, resolved: resolveScenario(source, file, nodeScenarioEnvironment(file, progress)) };
 }
 
 /** Check a scenario and return its resolved plan (what `run` would do), without running it. */
@@ -54,7 +54,7 @@ export async function runScenarioFile(file: string, options: RunOptions): Promis
     throw new UsageError(`${options.out} already holds files; choose a new --out, add --force to replace it, or continue it with placode run --resume ${options.out}`);
   }
   const t0 = performance.now();
-  const { text, resolved } = loadScenarioFile(file);
+  const { text, resolved } = loadScenarioFile(file, options.progress === 'none' ? undefined : (options.log ?? ((line: string) => process.stderr.write(line + '\n'))));
   const dir = replacing ? `${out}.new-${process.pid}` : out;
   if (replacing) rmSync(dir, { recursive: true, force: true });
   ensureDirectory(replacing ? dir : options.out, (m) => new UsageError(`--out ${m}`));

@@ -26,6 +26,8 @@ export interface ScenarioEnvironment {
   loadMesh(spec: MeshSpec): LoadedMesh;
   /** a previous run's final state, by species name (for `initial.from`) */
   loadState?(from: string): { species: string[]; values: Record<string, Float64Array> };
+  /** a line about long set-up work as it starts (carrying the mesh onto a stage mesh), where someone watches */
+  progress?(line: string): void;
 }
 
 export interface AnalysisPlan {

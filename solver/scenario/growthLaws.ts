@@ -104,6 +104,7 @@ function keyframeStages(input: GrowthLawInput): GrowthPlan['makeLaw'] | undefine
     } else {
       const names = Object.keys(kf.landmarks ?? {}).filter((name) => located.has(name));
       const landmarks = names.map((name) => ({ ...located.get(name)!, target: kf.landmarks![name] }));
+      input.env.progress?.(`carrying the mesh onto stage ${j + 1} (${kf.file}, ${stage.mesh.positions.length / 3} vertices)…`);
       const t0 = performance.now();
       const map = mapOntoSurface({ positions: current, triangles: mesh.triangles }, stage.mesh, { alignment, landmarks });
       const { report } = stageMapReport(mesh.triangles, current, map, stage.mesh, { stage: j + 1, file: kf.file, time: kf.time, landmarkNames: names, seconds: (performance.now() - t0) / 1000 });

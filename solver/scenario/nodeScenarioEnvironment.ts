@@ -6,7 +6,7 @@ import { loadRunState } from '../run/runDirectory.ts';
 import { scenarioMesh } from './scenarioMesh.ts';
 
 /** The Node environment of a scenario: shapes, mesh files relative to the scenario, previous runs. */
-export function nodeScenarioEnvironment(scenarioFile: string): ScenarioEnvironment {
+export function nodeScenarioEnvironment(scenarioFile: string, progress?: (line: string) => void): ScenarioEnvironment {
   const base = dirname(resolve(scenarioFile));
   return {
     loadMesh: (spec: MeshSpec): LoadedMesh =>
@@ -16,5 +16,6 @@ export function nodeScenarioEnvironment(scenarioFile: string): ScenarioEnvironme
         return { mesh: imported.mesh, vertexData: imported.vertexData, notes: imported.notes, source: { file: path } };
       }),
     loadState: (from: string) => loadRunState(resolve(base, from)),
+    progress,
   };
 }
