@@ -81,6 +81,10 @@ describe.skipIf(!haveChromium)('the viewer guides and tells the truth (Chromium)
     await page.goto(appUrl);
     await page.waitForFunction(() => (window as unknown as { __placode: AppState }).__placode?.loaded, null, { timeout: 60_000 });
     expect(await page.inputValue('#example')).toMatch(/limb-paddle-growing\.yaml$/);
+    // the menu offers the examples the page can set up by itself (not those reading stage meshes from files)
+    const offered = await page.evaluate(() => [...document.querySelectorAll('#example option')].map((o) => o.textContent));
+    expect(offered).toContain('sphere-spots');
+    expect(offered).not.toContain('limb-bud-stages');
     expect(await page.inputValue('#tissue-shape')).toBe('limb-bud');
     expect(await page.inputValue('#mechanism-model')).toBe('gierer-meinhardt');
     expect(await page.inputValue('#growth-law')).toBe('anisotropic');

@@ -330,7 +330,8 @@ function setUp() {
 const exampleSelect = byId<HTMLSelectElement>('example');
 for (const path of Object.keys(EXAMPLES).sort()) {
   const name = path.split('/').pop()!.replace(/\.yaml$/, '');
-  if (name.endsWith('-sweep')) continue;
+  // sweeps are for the command line; examples that read mesh files (stage meshes) need them opened first
+  if (name.endsWith('-sweep') || /^mesh:\s*(\{\s*file:|\n\s+file:)/m.test(EXAMPLES[path])) continue;
   exampleSelect.append(el('option', { value: path, text: name }));
 }
 exampleSelect.addEventListener('change', () => {
