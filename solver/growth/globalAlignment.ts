@@ -88,3 +88,22 @@ export function bestAlignment(p: Float64Array, q: Float64Array, w: Float64Array,
   const shift = [0, 1, 2].map((r) => cq[r] - (matrix[3 * r] * cp[0] + matrix[3 * r + 1] * cp[1] + matrix[3 * r + 2] * cp[2])) as [number, number, number];
   return { matrix, shift };
 }
+
+/** The inverse map. */
+export function inverseAffine(m: AffineMap): AffineMap {
+  const C = cofactor(m.matrix), det = determinant3(m.matrix);
+  // inverse = cofactorᵀ / det
+  const matrix = [C[0], C[3], C[6], C[1], C[4], C[7], C[2], C[5], C[8]].map((v) => v / det);
+  const t = m.shift;
+  const shift = [0, 1, 2].map((r) => -(matrix[3 * r] * t[0] + matrix[3 * r + 1] * t[1] + matrix[3 * r + 2] * t[2])) as [number, number, number];
+  return { matrix, shift };
+}
+
+/** The cofactor matrix of a 3×3 matrix: it maps normals under x ↦ Mx (det·M⁻ᵀ). */
+export function cofactor(M: readonly number[]): number[] {
+  return [
+    M[4] * M[8] - M[5] * M[7], M[5] * M[6] - M[3] * M[8], M[3] * M[7] - M[4] * M[6],
+    M[2] * M[7] - M[1] * M[8], M[0] * M[8] - M[2] * M[6], M[1] * M[6] - M[0] * M[7],
+    M[1] * M[5] - M[2] * M[4], M[2] * M[3] - M[0] * M[5], M[0] * M[4] - M[1] * M[3],
+  ];
+}
