@@ -183,6 +183,21 @@ describe.skipIf(!haveChromium)('the viewer guides and tells the truth (Chromium)
     await close(page);
   }, 90_000);
 
+  it('lengths and wavelengths carry the mesh\'s unit: the tissue statistics and the Stability tab', async () => {
+    const page = await openPage(browser, appUrl);
+    await setUpText(page, `
+mesh: {shape: sphere, params: {radius: 250}, vertices: 1500, units: µm}
+kinetics: {model: schnakenberg, parameters: {gamma: 1}}
+diffusion: {u: 1, v: 20}
+time: {scheme: imex, end: 10}
+`);
+    expect(await page.textContent('#tissue-stats')).toMatch(/area [\d.e+]+ µm² .* mean edge [\d.]+ µm/);
+    await page.waitForFunction(() => /wavelength/.test(document.querySelector('#stability-summary')?.textContent ?? ''), null, { timeout: 60_000 });
+    expect(await page.textContent('#stability-summary')).toMatch(/1\/µm², fastest k² = [\d.e+-]+ 1\/µm² \(wavelength 2π\/k = [\d.e+-]+ µm/);
+    expect(await page.textContent('#dispersion-plot')).toContain('k² (surface eigenvalue λ, 1/µm²)');
+    await close(page);
+  }, 90_000);
+
   it('the exported PNG carries the colour bar in the colormap\'s own colours (whole-pixel scale, opaque)', async () => {
     const page = await openPage(browser, appUrl);
     await setUpText(page, QUIET);

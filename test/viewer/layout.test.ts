@@ -148,6 +148,29 @@ describe.skipIf(!haveChromium)('the viewer\'s layout at three window sizes (Chro
           .map(({ text }) => text);
       });
       expect(outside).toEqual([]);
+      // the type and the actions: body text at 14 px or more, Start (primary, filled) unlike Set up (secondary,
+      // outlined), the form's sticky bar opaque and over the rows scrolled under it, the kinetics menu's choice
+      // shown whole
+      const look = await page.evaluate(() => {
+        const style = (sel: string) => getComputedStyle(document.querySelector(sel)!);
+        const bar = document.querySelector('.side-bottom')!.getBoundingClientRect();
+        const atBar = document.elementFromPoint(bar.left + 4, bar.top + 4);
+        const select = document.querySelector('#mechanism-model') as HTMLSelectElement;
+        const g = document.createElement('canvas').getContext('2d')!;
+        g.font = `${style('#mechanism-model').fontSize} ${style('#mechanism-model').fontFamily}`;
+        const textWidth = g.measureText(select.selectedOptions[0].textContent ?? '').width;
+        return {
+          body: parseFloat(style('body').fontSize),
+          start: style('#run').backgroundColor, setUp: style('#setup').backgroundColor,
+          barBackground: style('.side-bottom').backgroundColor, barOnTop: !!atBar?.closest('.side-bottom'),
+          menuFits: textWidth <= select.clientWidth - 20,
+        };
+      });
+      expect(look.body).toBeGreaterThanOrEqual(14);
+      expect(look.start).not.toBe(look.setUp);
+      expect(look.barBackground).toMatch(/^rgb\(/); // opaque
+      expect(look.barOnTop).toBe(true);
+      expect(look.menuFits).toBe(true);
       const contrast = await contrastFailures(page);
       expect(contrast.checked).toBeGreaterThan(40);
       expect(contrast.fails).toEqual([]);
