@@ -1,4 +1,5 @@
 import { symmetricEigen } from '../linalg/symmetricEigen.ts';
+import { weightedCentroid } from '../mesh/weightedCentroid.ts';
 
 /** The class of global map fitted before a non-rigid registration. */
 export type Alignment = 'none' | 'rigid' | 'similarity' | 'affine';
@@ -25,12 +26,6 @@ export function applyAffine(m: AffineMap, x: Float64Array, out: Float64Array): F
 
 export function determinant3(m: readonly number[]): number {
   return m[0] * (m[4] * m[8] - m[5] * m[7]) - m[1] * (m[3] * m[8] - m[5] * m[6]) + m[2] * (m[3] * m[7] - m[4] * m[6]);
-}
-
-function weightedCentroid(x: Float64Array, w: Float64Array): [number, number, number] {
-  let s = 0, cx = 0, cy = 0, cz = 0;
-  for (let i = 0; i < w.length; i++) { s += w[i]; cx += w[i] * x[3 * i]; cy += w[i] * x[3 * i + 1]; cz += w[i] * x[3 * i + 2]; }
-  return [cx / s, cy / s, cz / s];
 }
 
 /**

@@ -5,6 +5,7 @@ import { applyAffine, bestAlignment, cofactor, IDENTITY_MAP, inverseAffine, type
 import { LANDMARK_WEIGHT, SurfaceCorrespondences } from './surfaceCorrespondences.ts';
 import { REGISTRATION_ROUNDS, REGISTRATION_STIFFNESS_LENGTHS, smoothRegistration } from './smoothRegistration.ts';
 import { settleOnSurface } from './settleOnSurface.ts';
+import { weightedCentroid } from '../mesh/weightedCentroid.ts';
 
 export type { Alignment } from './globalAlignment.ts';
 
@@ -101,8 +102,8 @@ function globalAlignment(corr: SurfaceCorrespondences, alignment: Exclude<Alignm
   const wS = restricted(wSource, sampleS), wT = restricted(wTarget, sampleT);
   const onSource = new SurfaceProjector(source);
   const sourceNormals = vertexNormals(source);
-  const cs = centroid(source.positions, wSource), ct = centroid(target.positions, wTarget);
-  const s0 = alignment === 'rigid' ? 1 : Math.sqrt(spread(target.positions, ct, wTarget) / spread(source.positions, cs, wSource));
+  const cs = weightedCentroid(source.positions, wSource), ct = weightedCentroid(target.positions, wTarget);
+  const s0 = alignment === 'rigid' ? 1 : Math.sqrt(meanSquareDistance(target.positions, ct, wTarget) / meanSquareDistance(source.positions, cs, wSource));
   let transform: AffineMap = { matrix: [s0, 0, 0, 0, s0, 0, 0, 0, s0], shift: [ct[0] - s0 * cs[0], ct[1] - s0 * cs[1], ct[2] - s0 * cs[2]] };
   if (landmarks.length >= 2) {
     // landmarks and the centroids fix the turn that closest points alone find slowly, or not at all on a symmetric shape
@@ -116,7 +117,7 @@ function globalAlignment(corr: SurfaceCorrespondences, alignment: Exclude<Alignm
   const x = new Float64Array(3 * n);
   const pairs = sampleS.length + sampleT.length + landmarks.length;
   const p = new Float64Array(3 * pairs), q = new Float64Array(3 * pairs), w = new Float64Array(pairs);
-  const size = Math.sqrt(spread(target.positions, ct, wTarget));
+  const size = Math.sqrt(meanSquareDistance(target.positions, ct, wTarget));
   for (let round = 0; round < ALIGNMENT_ROUNDS; round++) {
     applyAffine(transform, source.positions, x);
     corr.sourceToTarget(x, sampleS, wS);
@@ -147,20 +148,20 @@ function globalAlignment(corr: SurfaceCorrespondences, alignment: Exclude<Alignm
   return transform;
 }
 
-/** Place a point given on a surface (nearest point of the surface to it): its triangle's corners and weights. */
-export function locateOnSurface(surface: Mesh, point: readonly number[]): { corners: [number, number, number]; weights: [number, number, number]; distance: number } {
+/** Place points given on a surface (the surface's nearest point to each): its triangle's corners and weights, and how far it was. */
+export function locateOnSurface(surface: Mesh, points: readonly (readonly number[])[]): { corners: [number, number, number]; weights: [number, number, number]; distance: number }[] {
+  if (points.length === 0) return [];
   const projector = new SurfaceProjector(surface);
-  const p = Float64Array.from(point);
-  projector.project(p, 0);
-  return { corners: Array.from(projector.corners) as [number, number, number], weights: Array.from(projector.weights) as [number, number, number], distance: projector.distance };
+  return points.map((point) => {
+    projector.project(Float64Array.from(point), 0);
+    return { corners: Array.from(projector.corners) as [number, number, number], weights: Array.from(projector.weights) as [number, number, number], distance: projector.distance };
+  });
 }
 
 /** Coordinate d of a landmark's point on positions x. */
 function pointOn(x: Float64Array, l: StageLandmark, d: number): number {
   return l.weights[0] * x[3 * l.corners[0] + d] + l.weights[1] * x[3 * l.corners[1] + d] + l.weights[2] * x[3 * l.corners[2] + d];
 }
-
-
 
 /** Every k-th index, at most about `count` of them. */
 function sample(n: number, count: number): Uint32Array {
@@ -179,18 +180,8 @@ function restricted(w: Float64Array, list: Uint32Array): Float64Array {
   return out;
 }
 
-
-
-
-
-
-function centroid(x: Float64Array, w: Float64Array): [number, number, number] {
-  const c: [number, number, number] = [0, 0, 0];
-  for (let i = 0; i < w.length; i++) for (let d = 0; d < 3; d++) c[d] += w[i] * x[3 * i + d];
-  return c;
-}
-
-function spread(x: Float64Array, c: number[], w: Float64Array): number {
+/** Σ wᵢ|xᵢ − c|² (weights summing to 1: the mean square distance from c). */
+function meanSquareDistance(x: Float64Array, c: number[], w: Float64Array): number {
   let s = 0;
   for (let i = 0; i < w.length; i++) s += w[i] * ((x[3 * i] - c[0]) ** 2 + (x[3 * i + 1] - c[1]) ** 2 + (x[3 * i + 2] - c[2]) ** 2);
   return s;

@@ -7,20 +7,12 @@ import type { Linearisation } from './linearisation.ts';
 import { GROWTH_LAWS } from './growthLaws.ts';
 import type { StageMapReport } from '../growth/stageMapReport.ts';
 import { lumpedMass } from '../fem/lumpedMass.ts';
+import { weightedCentroid } from '../mesh/weightedCentroid.ts';
 import { GROWTH_AREA_TOLERANCE, GROWTH_REFINE_MAX_VERTICES } from '../defaults.ts';
 
 /** Keys that belong to one law or another: named when given to a law that does not read them. */
 const LAW_KEYS = ['rate', 'rates', 'axes', 'speed', 'expansion'] as const;
 const KEYFRAME_KEYS = ['keyframes', 'interpolation', 'align', 'maxFolded', 'landmarks'] as const;
-
-/** Area centroid of a surface (lumped-mass weights). */
-function areaCentroid(mesh: Mesh): [number, number, number] {
-  const n = mesh.positions.length / 3;
-  const m = lumpedMass(mesh);
-  let a = 0, cx = 0, cy = 0, cz = 0;
-  for (let i = 0; i < n; i++) { a += m[i]; cx += m[i] * mesh.positions[3 * i]; cy += m[i] * mesh.positions[3 * i + 1]; cz += m[i] * mesh.positions[3 * i + 2]; }
-  return [cx / a, cy / a, cz / a];
-}
 
 /**
  * The `growth` section: the law (from GROWTH_LAWS) with the keys it reads
@@ -32,7 +24,7 @@ export function resolveGrowth(ctx: ResolveContext, g: GrowthSpec, mesh: Mesh, fi
   const { problems } = ctx;
   const entry = GROWTH_LAWS[g.law];
   const course = g.course ?? 'exponential';
-  const centre = g.centre ?? areaCentroid(mesh);
+  const centre = g.centre ?? weightedCentroid(mesh.positions, lumpedMass(mesh)); // the area centroid
   for (const k of LAW_KEYS) if (g[k] !== undefined && !entry.keys.includes(k)) problems.add(['growth', k], `"${k}" does not apply to law: ${g.law}`);
   if (g.capacity !== undefined && course !== 'logistic') problems.add(['growth', 'capacity'], 'capacity applies to course: logistic');
   if (g.refine && g.refine.edgeGrowth === undefined && g.refine.perWavelength === undefined) problems.add(['growth', 'refine'], 'say when to refine: edgeGrowth (a factor since the start) and/or perWavelength (edges per fastest-growing wavelength)');
