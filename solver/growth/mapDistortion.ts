@@ -16,8 +16,6 @@ export interface MapDistortion {
   areaRatio: Spread;
   /** each triangle's largest change of an angle, in degrees */
   angleChange: Spread;
-  /** each vertex's share of area (lumped mass) after over before: where the tissue grew, for painting */
-  vertexAreaRatio: Float64Array;
 }
 
 /** Distortion of the map x ↦ y of a triangulated surface (positions before and after, same triangles). */
@@ -32,10 +30,15 @@ export function mapDistortion(triangles: Uint32Array, before: Float64Array, afte
     triangleAngles(after, triangles, t, angles1);
     angle[t] = Math.max(Math.abs(angles1[0] - angles0[0]), Math.abs(angles1[1] - angles0[1]), Math.abs(angles1[2] - angles0[2])) * (180 / Math.PI);
   }
+  return { areaRatio: spread(ratio), angleChange: spread(angle) };
+}
+
+/** Each vertex's share of area (lumped mass) after over before: where the tissue grew, for painting. */
+export function vertexAreaRatio(triangles: Uint32Array, before: Float64Array, after: Float64Array): Float64Array {
   const m0 = lumpedMass({ positions: before, triangles }), m1 = lumpedMass({ positions: after, triangles });
-  const vertexAreaRatio = new Float64Array(m0.length);
-  for (let i = 0; i < m0.length; i++) vertexAreaRatio[i] = m0[i] > 0 ? m1[i] / m0[i] : 1;
-  return { areaRatio: spread(ratio), angleChange: spread(angle), vertexAreaRatio };
+  const ratio = new Float64Array(m0.length);
+  for (let i = 0; i < m0.length; i++) ratio[i] = m0[i] > 0 ? m1[i] / m0[i] : 1;
+  return ratio;
 }
 
 /** min, 5th, 50th, 95th percentile and max (nearest rank). */

@@ -37,7 +37,7 @@ export interface StageMapReport {
 }
 
 /** The report of a map from `before` (positions on the source's triangles) onto `stage`. */
-export function stageMapReport(triangles: Uint32Array, before: Float64Array, map: SurfaceMap, stage: Mesh, info: { stage: number; file: string; time?: number; landmarkNames: string[]; seconds: number }): { report: StageMapReport; vertexAreaRatio: Float64Array } {
+export function stageMapReport(triangles: Uint32Array, before: Float64Array, map: SurfaceMap, stage: Mesh, info: { stage: number; file: string; time?: number; landmarkNames: string[]; seconds: number }): StageMapReport {
   const distortion = mapDistortion(triangles, before, map.positions);
   const onMapped = new SurfaceProjector({ positions: map.positions, triangles });
   const y = Float64Array.from(stage.positions);
@@ -47,25 +47,22 @@ export function stageMapReport(triangles: Uint32Array, before: Float64Array, map
     gap = Math.max(gap, onMapped.distance);
   }
   return {
-    report: {
-      stage: info.stage,
-      file: info.file,
-      ...(info.time === undefined ? {} : { time: info.time }),
-      stageVertices: stage.positions.length / 3,
-      alignment: map.transform,
-      areaRatio: distortion.areaRatio,
-      angleChange: distortion.angleChange,
-      maxProjection: map.maxDistance,
-      gap,
-      stageMeanEdge: edgeLengthStats(stage).mean,
-      landmarks: info.landmarkNames.map((name, k) => ({ name, residual: map.landmarkResiduals[k] })),
-      relaxed: map.relaxed,
-      folded: map.folded.length,
-      collapsed: map.collapsed.length,
-      bridging: map.bridging.length,
-      seconds: info.seconds,
-    },
-    vertexAreaRatio: distortion.vertexAreaRatio,
+    stage: info.stage,
+    file: info.file,
+    ...(info.time === undefined ? {} : { time: info.time }),
+    stageVertices: stage.positions.length / 3,
+    alignment: map.transform,
+    areaRatio: distortion.areaRatio,
+    angleChange: distortion.angleChange,
+    maxProjection: map.maxDistance,
+    gap,
+    stageMeanEdge: edgeLengthStats(stage).mean,
+    landmarks: info.landmarkNames.map((name, k) => ({ name, residual: map.landmarkResiduals[k] })),
+    relaxed: map.relaxed,
+    folded: map.folded.length,
+    collapsed: map.collapsed.length,
+    bridging: map.bridging.length,
+    seconds: info.seconds,
   };
 }
 

@@ -77,11 +77,11 @@ function keyframeStages(input: GrowthLawInput): GrowthPlan['makeLaw'] | undefine
   // landmarks: named points on the start surface, carried through the chain by their triangle and weights
   const start = g.landmarks ?? {};
   const located = new Map<string, { corners: [number, number, number]; weights: [number, number, number] }>();
-  for (const [name, point] of Object.entries(start)) {
-    const at = locateOnSurface(mesh, point);
-    located.set(name, at);
-    if (at.distance > 0.05 * Math.sqrt(meshArea(mesh))) input.warnings.push(`growth.landmarks.${name}: (${point.join(', ')}) lies ${at.distance.toPrecision(3)} from the start surface; it is pinned at the surface's closest point`);
-  }
+  const places = locateOnSurface(mesh, Object.values(start));
+  Object.entries(start).forEach(([name, point], k) => {
+    located.set(name, places[k]);
+    if (places[k].distance > 0.05 * Math.sqrt(meshArea(mesh))) input.warnings.push(`growth.landmarks.${name}: (${point.join(', ')}) lies ${places[k].distance.toPrecision(3)} from the start surface; it is pinned at the surface's closest point`);
+  });
   const reports: StageMapReport[] = [];
   let current = stages[0];
   let failed = false;
@@ -107,7 +107,7 @@ function keyframeStages(input: GrowthLawInput): GrowthPlan['makeLaw'] | undefine
       input.env.progress?.(`carrying the mesh onto stage ${j + 1} (${kf.file}, ${stage.mesh.positions.length / 3} vertices)…`);
       const t0 = performance.now();
       const map = mapOntoSurface({ positions: current, triangles: mesh.triangles }, stage.mesh, { alignment, landmarks });
-      const { report } = stageMapReport(mesh.triangles, current, map, stage.mesh, { stage: j + 1, file: kf.file, time: kf.time, landmarkNames: names, seconds: (performance.now() - t0) / 1000 });
+      const report = stageMapReport(mesh.triangles, current, map, stage.mesh, { stage: j + 1, file: kf.file, time: kf.time, landmarkNames: names, seconds: (performance.now() - t0) / 1000 });
       reports.push(report);
       const bad = map.folded.length + map.collapsed.length + map.bridging.length;
       const nF = mesh.triangles.length / 3;

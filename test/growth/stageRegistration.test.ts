@@ -107,7 +107,7 @@ describe('carrying a surface onto a separately meshed later stage', () => {
 
   it('landmarks pin what the shapes leave open: a sphere onto a sphere, turned a quarter about z by two landmarks', () => {
     const a = shape('ellipsoid', { a: 1, b: 1, c: 1 }, 1500), b = shape('ellipsoid', { a: 1, b: 1, c: 1 }, 2000);
-    const pin = (from: number[], to: [number, number, number]) => ({ ...locateOnSurface(a, from), target: to });
+    const pin = (from: number[], to: [number, number, number]) => ({ ...locateOnSurface(a, [from])[0], target: to });
     const map = mapOntoSurface(a, b, { alignment: 'rigid', landmarks: [pin([1, 0, 0], [0, 1, 0]), pin([0, 0, 1], [0, 0, 1])] });
     expectOnStage(a, b, map.positions, map);
     // the landmarks land on their points to within a mean edge's hundredth, and the rest turns with them

@@ -37,7 +37,7 @@ export const registerStages: RegisterCommand = (program, ctx) => {
         meshes.push(r.mesh);
       }
       const first = meshes[0];
-      const located = landmarks.map((l) => ({ name: l.name, ...locateOnSurface(first, l.points[0]) }));
+      const located = locateOnSurface(first, landmarks.map((l) => l.points[0]));
       let current: Float64Array = Float64Array.from(first.positions);
       const reports = [];
       for (let k = 1; k < meshes.length; k++) {
@@ -47,17 +47,17 @@ export const registerStages: RegisterCommand = (program, ctx) => {
           landmarks: located.map((l, j) => ({ corners: l.corners, weights: l.weights, target: landmarks[j].points[k] })),
           onProgress: o.quiet || o.json || !process.stderr.isTTY ? undefined : (done, of) => process.stderr.write(`\rstage ${k + 1}: round ${done} of ${of}${done === of ? '\n' : ''}`),
         });
-        const { report } = stageMapReport(first.triangles, current, map, meshes[k], { stage: k + 1, file: files[k], landmarkNames: landmarks.map((l) => l.name), seconds: (performance.now() - t0) / 1000 });
+        const report = stageMapReport(first.triangles, current, map, meshes[k], { stage: k + 1, file: files[k], landmarkNames: landmarks.map((l) => l.name), seconds: (performance.now() - t0) / 1000 });
         reports.push(report);
         if (!o.json) process.stdout.write(formatStageMap(report) + '\n');
         current = map.positions;
         if (report.folded + report.collapsed + report.bridging > 0) ctx.setExitCode(2);
       }
       if (o.out) {
-        const { mapDistortion } = await import('../../growth/mapDistortion.ts');
+        const { vertexAreaRatio } = await import('../../growth/mapDistortion.ts');
         const { colorizeField } = await import('../../io/colormap.ts');
         const { saveMeshFile } = await import('../../io/meshFiles.ts');
-        const ratio = mapDistortion(first.triangles, first.positions, current).vertexAreaRatio;
+        const ratio = vertexAreaRatio(first.triangles, first.positions, current);
         const log2 = ratio.map((v) => Math.log2(v));
         // the colour range: ±the 98th percentile of |log2 ratio| (a few stretched triangles at a rim would wash the rest out)
         const magnitudes = Float64Array.from(log2.filter(Number.isFinite).map(Math.abs)).sort();
