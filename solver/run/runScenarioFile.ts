@@ -10,7 +10,7 @@ import { RUN_FILES, decodeState } from './runFiles.ts';
 import { newRunRecord } from './RunRecord.ts';
 import { readRunRecord } from './runDirectory.ts';
 import { meshChecksum, textChecksum } from './meshChecksum.ts';
-import { writeRun, type RunOptions, type RunOutcome } from './writeRun.ts';
+import { runLog, writeRun, type RunOptions, type RunOutcome } from './writeRun.ts';
 import { UsageError } from '../UsageError.ts';
 import { readTextFile } from '../io/readTextFile.ts';
 import { VERSION } from '../version.ts';
@@ -54,7 +54,7 @@ export async function runScenarioFile(file: string, options: RunOptions): Promis
     throw new UsageError(`${options.out} already holds files; choose a new --out, add --force to replace it, or continue it with placode run --resume ${options.out}`);
   }
   const t0 = performance.now();
-  const { text, resolved } = loadScenarioFile(file, options.progress === 'none' ? undefined : (options.log ?? ((line: string) => process.stderr.write(line + '\n'))));
+  const { text, resolved } = loadScenarioFile(file, options.progress === 'none' ? undefined : runLog(options));
   const dir = replacing ? `${out}.new-${process.pid}` : out;
   if (replacing) rmSync(dir, { recursive: true, force: true });
   ensureDirectory(replacing ? dir : options.out, (m) => new UsageError(`--out ${m}`));

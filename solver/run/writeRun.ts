@@ -56,6 +56,11 @@ export interface RunOutcome {
   message: string;
 }
 
+/** Where a run's lines go: `options.log`, else stderr. */
+export function runLog(options: RunOptions): (line: string) => void {
+  return options.log ?? ((line: string) => process.stderr.write(line + '\n'));
+}
+
 /** Where a run is written: `dir`; with `replacing`, `dir` is a new directory beside that run, which replaces it once the new run has its first state. */
 export interface RunTarget {
   dir: string;
@@ -75,7 +80,7 @@ export async function writeRun(target: RunTarget, r: ResolvedScenario, record: R
   /** where files go now: the run directory, or (replacing a run) a new one beside it until its first state is written */
   let out = target.dir;
   const final = target.replacing ?? target.dir;
-  const log = options.log ?? ((line: string) => process.stderr.write(line + '\n'));
+  const log = runLog(options);
   const nS = r.species.length;
   const { dt, steps: lastStep } = r;
   const growing = r.growth !== undefined;
