@@ -97,7 +97,7 @@ export function smoothRegistration(x: Float64Array, corr: SurfaceCorrespondences
   }
 }
 
-export function iota(n: number): Uint32Array {
+function iota(n: number): Uint32Array {
   const out = new Uint32Array(n);
   for (let i = 0; i < n; i++) out[i] = i;
   return out;

@@ -50,29 +50,21 @@ export class SurfaceProjector {
     }
     const maxNodes = 2 * nT + 1;
     const boxes = new Float64Array(6 * maxNodes), first = new Uint32Array(maxNodes), count = new Uint32Array(maxNodes);
-    // build breadth-wise from a work list of (node, start, end)
+    // build from a stack of (node, start, end); children are numbered after their parent
     const work: number[] = [0, 0, nT];
     let nodes = 1, depth = 0;
     const depthOf = new Uint32Array(maxNodes);
     while (work.length) {
       const end = work.pop()!, start = work.pop()!, node = work.pop()!;
-      let x0 = Infinity, y0 = Infinity, z0 = Infinity, x1 = -Infinity, y1 = -Infinity, z1 = -Infinity;
+      // the split: at the median centroid along the longest side of the centroids' box
       let c0 = Infinity, c1 = Infinity, c2 = Infinity, C0 = -Infinity, C1 = -Infinity, C2 = -Infinity;
       for (let s = start; s < end; s++) {
         const t = order[s];
-        for (let k = 0; k < 3; k++) {
-          const v = 3 * this.tri[3 * t + k];
-          const a = this.p[v], b = this.p[v + 1], c = this.p[v + 2];
-          if (a < x0) x0 = a; if (a > x1) x1 = a;
-          if (b < y0) y0 = b; if (b > y1) y1 = b;
-          if (c < z0) z0 = c; if (c > z1) z1 = c;
-        }
         const a = centre[3 * t], b = centre[3 * t + 1], c = centre[3 * t + 2];
         if (a < c0) c0 = a; if (a > C0) C0 = a;
         if (b < c1) c1 = b; if (b > C1) C1 = b;
         if (c < c2) c2 = c; if (c > C2) C2 = c;
       }
-      boxes.set([x0, y0, z0, x1, y1, z1], 6 * node);
       depth = Math.max(depth, depthOf[node]);
       if (end - start <= LEAF_SIZE) {
         first[node] = start;
@@ -95,12 +87,12 @@ export class SurfaceProjector {
     this.order = order;
     this.stack = new Uint32Array(2 * depth + 8);
     this.coords = new Float64Array(9 * nT);
-    this.gather();
+    this.refit(this.p); // the boxes, bottom-up
   }
 
   /**
    * Follow the surface to new positions (same triangles): the boxes are
-   * recomputed bottom-up with the tree kept, so a surface that moves smoothly
+   * recomputed bottom-up with the tree kept (as the constructor does), so a surface that moves smoothly
    * is searched almost as fast as one built afresh, at a fraction of the cost.
    */
   refit(positions: Float64Array): void {
@@ -153,9 +145,6 @@ export class SurfaceProjector {
     out[3 * i] = this.hx; out[3 * i + 1] = this.hy; out[3 * i + 2] = this.hz;
   }
 
-  /** Kept for callers that ask for the hit's corners explicitly: they are filled by every projection. */
-  locate(): void {}
-
   /** A per-vertex value of the surface at the last hit, interpolated by its barycentric weights. */
   interpolate(values: ArrayLike<number>): number {
     const k = this.corners, w = this.weights;
@@ -164,6 +153,7 @@ export class SurfaceProjector {
 
   private search(px: number, py: number, pz: number, bound2: number): boolean {
     const { boxes, first, count, order, stack, coords: q, tri } = this;
+    if (order.length === 0) return false; // no triangles: nothing to find (and no leaf to end on)
     let best = bound2, found = false;
     let top = 0;
     stack[top++] = 0;
