@@ -27,8 +27,6 @@ import { exportPicture, exportColouredMesh } from './viewExport.ts';
 const FIRST_EXAMPLE = 'limb-paddle-growing';
 const EXAMPLES = import.meta.glob('../../meshes/examples/*.yaml', { query: '?raw', import: 'default', eager: true }) as Record<string, string>;
 
-
-
 const worker = new Worker(new URL('./simulationWorker.ts', import.meta.url), { type: 'module' });
 const send = (m: ToSimulation, transfer: Transferable[] = []) => worker.postMessage(m, transfer);
 
@@ -285,7 +283,6 @@ function extent(p: Float64Array): number {
   return r;
 }
 
-
 /** Keep the timeline under ~400 MB: drop every other frame (the first and last stay). */
 function thinTimeline() {
   const bytes = timeline.reduce((a, f) => a + Object.values(f.fields).reduce((b, v) => b + v.byteLength, 0), 0);
@@ -306,7 +303,11 @@ byId('run').addEventListener('click', () => {
   }
   status();
 });
-byId('step').addEventListener('click', () => { if (!app.loaded) return notice('transport-notice', 'Nothing to step yet: press “Set up” first.'); if (app.loaded) { app.view = 'live'; send({ type: 'step', steps: Number(byId<HTMLInputElement>('step-count').value) || 1 }); } });
+byId('step').addEventListener('click', () => {
+  if (!app.loaded) return notice('transport-notice', 'Nothing to step yet: press “Set up” first.');
+  app.view = 'live';
+  send({ type: 'step', steps: Number(byId<HTMLInputElement>('step-count').value) || 1 });
+});
 byId('reset').addEventListener('click', () => {
   if (!app.loaded) return;
   timeline = [];
@@ -480,7 +481,7 @@ async function loadServerRun() {
   await showFrame(timeline.length - 1);
   await showFrame(0);
   app.serverRun = { name: info.name, frames: timeline.length };
-  // the form describes this run: its scenario as text (the form's fields greyed: they describe the set-up, not the run)
+  // the form describes this run: its scenario read into the fields (read-only where the form cannot hold it)
   if (runScenarioText) form.showScenario(runScenarioText);
   say(`loaded run ${info.name}: ${timeline.length} frames`);
 }

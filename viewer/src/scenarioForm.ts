@@ -213,10 +213,10 @@ export class ScenarioForm {
     // own formulas: their parameter list (with "+ parameter") is made by fillCustom, and kept
     if (this.f.model.value === CUSTOM) {
       // a new mechanism: a clock that suits the default formulas (rates of order 1)
-      Object.assign(this.f.step, { value: '0.01' });
-      Object.assign(this.f.end, { value: '20' });
-      Object.assign(this.f.every, { value: '0.5' });
-      Object.assign(this.f.spots, { value: '0' });
+      this.f.step.value = '0.01';
+      this.f.end.value = '20';
+      this.f.every.value = '0.5';
+      this.f.spots.value = '0';
       return this.fillCustom(false);
     }
     const m = MODELS[this.f.model.value];
@@ -233,7 +233,7 @@ export class ScenarioForm {
       this.f.spots.value = gs ? '6' : '0';
       this.f.noise.value = '0.01';
     }
-    this.fillSpotValues();
+    this.fillStartRows();
   }
 
   /** Own formulas: a rate per species, the parameters (those typed before, unless a built-in model's), start values. */
@@ -254,7 +254,7 @@ export class ScenarioForm {
       }
     });
     this.fillDiffusion();
-    this.fillSpotValues();
+    this.fillStartRows();
   }
 
   private fillDiffusion() {
@@ -267,7 +267,7 @@ export class ScenarioForm {
     const own = this.f.model.value === CUSTOM;
     const old = Object.fromEntries([...this.f.startValues.querySelectorAll<HTMLInputElement>('[data-start]')].map((i) => [i.dataset.start!, i.value]));
     const defaults = ['1', '0.9'];
-    this.f.startValues.replaceChildren(...(own ? this.species() : []).map((s, k) => el('label', { class: 'row' }, el('span', { text: `start ${s}` }), el('input', { type: 'text', 'data-start': s, value: old[s] ?? defaults[k] ?? '1', class: 'formula', title: `the value of ${s} everywhere at t = 0 (a number or a formula in x, y, z), before noise and spots` }))));
+    this.f.startValues.replaceChildren(...(own ? this.species() : []).map((s, k) => this.fieldRow(s, old[s] ?? defaults[k] ?? '1', `the value of ${s} everywhere at t = 0 (a number or a formula in x, y, z), before noise and spots`, 'start', `start ${s}`)));
   }
 
   /** Start values of own formulas by species (text: a number or a formula). */
@@ -275,15 +275,17 @@ export class ScenarioForm {
     return Object.fromEntries([...this.f.startValues.querySelectorAll<HTMLInputElement>('[data-start]')].map((i) => [i.dataset.start!, i.value.trim()]));
   }
 
-  private fillSpotValues() {
+  /** The Start section's rows that depend on the mechanism: start values (own formulas) and spot values. */
+  private fillStartRows() {
     this.fillStartValues();
     const gs = this.f.model.value === 'gray-scott';
     const defaults: Record<string, string> = gs ? { u: '0.5', v: '0.25' } : {};
     this.f.spotValues.replaceChildren(...this.species().map((s) => el('label', { class: 'row' }, el('span', { text: `spot ${s}` }), el('input', { type: 'text', 'data-species': s, value: defaults[s] ?? '', placeholder: 'unchanged' }))));
   }
 
-  private fieldRow(name: string, value: string, title: string, kind: 'param' | 'diffusion'): HTMLElement {
-    return el('label', { class: 'row' }, el('span', { text: name, title: name }), el('input', { type: 'text', value, title, class: 'formula', [`data-${kind}`]: name }));
+  /** A row of a formula field: its label (the name, unless given), the input keyed by `data-<kind>`. */
+  private fieldRow(name: string, value: string, title: string, kind: 'param' | 'diffusion' | 'start', label = name): HTMLElement {
+    return el('label', { class: 'row' }, el('span', { text: label, title: label }), el('input', { type: 'text', value, title, class: 'formula', [`data-${kind}`]: name }));
   }
 
   /** Parse every formula as it is typed; messages name the field and the column. */
