@@ -1,15 +1,12 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { Server } from 'node:http';
 import type { Browser, Page } from 'playwright-core';
 import { PNG } from 'pngjs';
 import validator from 'gltf-validator';
-import { haveChromium, launchChromium } from './browser.ts';
-import { close, open as openPage, setUpText, state, type AppState } from './viewerPage.ts';
-import { startViewServer } from '../../solver/cli/viewServer.ts';
-import { ensureViewerBuilt } from '../../solver/cli/viewerBuild.ts';
+import { haveChromium } from './browser.ts';
+import { close, open as openPage, setUpText, startViewers, state, type AppState, type Viewers } from './viewerPage.ts';
 import { runScenarioFile } from '../../solver/run/runScenarioFile.ts';
 import { parseMeshFile } from '../../solver/io/parseMeshFile.ts';
 import { speciesFromProperties } from '../../solver/run/runFiles.ts';
@@ -19,7 +16,6 @@ import { writeStl } from '../../solver/io/writeStl.ts';
 
 let dir = '';
 let browser: Browser;
-const servers: Server[] = [];
 let appUrl = '';
 let runUrl = '';
 
@@ -44,25 +40,15 @@ time: {scheme: imex, step: 1, end: 100000}
 output: {every: 50, colour: v}
 `;
 
+let viewers: Viewers | undefined;
 beforeAll(async () => {
   if (!haveChromium) return;
-  dir = mkdtempSync(join(tmpdir(), 'placode-viewer-'));
-  const appDir = await ensureViewerBuilt();
-  writeFileSync(join(dir, 'growing.yaml'), GROWING);
-  const run = await runScenarioFile(join(dir, 'growing.yaml'), { out: join(dir, 'growing-run'), progress: 'none', log: () => {} });
-  expect(run.reason).toBe('end');
-  const a = await startViewServer({ appDir, port: 0 });
-  const b = await startViewServer({ appDir, runDir: join(dir, 'growing-run'), port: 0 });
-  servers.push(a.server, b.server);
-  appUrl = a.url;
-  runUrl = b.url;
-  browser = await launchChromium();
+  viewers = await startViewers(GROWING, 'growing-run');
+  ({ browser, appUrl, runUrl, dir } = viewers);
 }, 120_000);
 
 afterAll(async () => {
-  await browser?.close();
-  for (const s of servers) s.close();
-  if (dir) rmSync(dir, { recursive: true, force: true });
+  await viewers?.stop();
 });
 
 const open = (url: string) => openPage(browser, url, url === runUrl);

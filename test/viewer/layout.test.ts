@@ -1,47 +1,31 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
-import { join } from 'node:path';
-import type { Server } from 'node:http';
 import type { Browser, Page } from 'playwright-core';
-import { haveChromium, launchChromium } from './browser.ts';
-import type { AppState } from './viewerPage.ts';
-import { startViewServer } from '../../solver/cli/viewServer.ts';
-import { ensureViewerBuilt } from '../../solver/cli/viewerBuild.ts';
-import { runScenarioFile } from '../../solver/run/runScenarioFile.ts';
+import { haveChromium } from './browser.ts';
+import { startViewers, type AppState, type Viewers } from './viewerPage.ts';
 
-let dir = '';
 let browser: Browser;
-const servers: Server[] = [];
 let appUrl = '';
 let runUrl = '';
 
-beforeAll(async () => {
-  if (!haveChromium) return;
-  dir = mkdtempSync(join(tmpdir(), 'placode-layout-'));
-  const appDir = await ensureViewerBuilt();
-  writeFileSync(join(dir, 'run.yaml'), `
+/** A short recorded run for the scrubbing part of a session: Gray–Scott on a small sphere, 3 frames. */
+const RUN = `
 mesh: {shape: sphere, params: {radius: 0.25}, vertices: 500}
 kinetics: {model: gray-scott, parameters: {F: 0.03, k: 0.062}}
 initial: {spots: {count: 2, radius: 0.08, values: {u: 0.5, v: 0.25}}}
 time: {scheme: imex, step: 1, end: 200}
 output: {every: 100}
 analysis: {modes: 0}
-`);
-  const run = await runScenarioFile(join(dir, 'run.yaml'), { out: join(dir, 'run'), progress: 'none', log: () => {} });
-  expect(run.reason).toBe('end');
-  const a = await startViewServer({ appDir, port: 0 });
-  const b = await startViewServer({ appDir, runDir: join(dir, 'run'), port: 0 });
-  servers.push(a.server, b.server);
-  appUrl = a.url;
-  runUrl = b.url;
-  browser = await launchChromium();
+`;
+
+let viewers: Viewers | undefined;
+beforeAll(async () => {
+  if (!haveChromium) return;
+  viewers = await startViewers(RUN, 'run');
+  ({ browser, appUrl, runUrl } = viewers);
 }, 120_000);
 
 afterAll(async () => {
-  await browser?.close();
-  for (const s of servers) s.close();
-  if (dir) rmSync(dir, { recursive: true, force: true });
+  await viewers?.stop();
 });
 
 /** A page at a window size that records every console error and uncaught exception. */

@@ -1,5 +1,12 @@
 import { expect } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { launchChromium } from './browser.ts';
+import { ensureViewerBuilt } from '../../solver/cli/viewerBuild.ts';
+import { startViewServer } from '../../solver/cli/viewServer.ts';
+import { runScenarioFile } from '../../solver/run/runScenarioFile.ts';
 
 /** What the page exposes as window.__placode (see viewer/src/app.ts). */
 export interface AppState {
@@ -53,4 +60,40 @@ export async function setUpText(page: Page, text: string): Promise<void> {
     const a = (window as unknown as { __placode: AppState }).__placode;
     return a.messages.length > n && a.messages.some((m, i) => i < a.messages.length - n && m.startsWith('info: set up'));
   }, before, { timeout: 60_000 });
+}
+
+/** Two viewer servers (on their own, and on a run directory) and Chromium, for a test file's beforeAll. */
+export interface Viewers {
+  browser: Browser;
+  /** the page with no run directory */
+  appUrl: string;
+  /** the page serving the run directory `runName` */
+  runUrl: string;
+  /** a temporary directory holding the run (and whatever the tests write there) */
+  dir: string;
+  stop(): Promise<void>;
+}
+
+/**
+ * Build the viewer, run `scenario` into `dir/runName` with the command line's own run loop, serve the
+ * page twice (without and with that run) and launch Chromium; `stop` closes them and removes `dir`.
+ */
+export async function startViewers(scenario: string, runName: string): Promise<Viewers> {
+  const dir = mkdtempSync(join(tmpdir(), `placode-${runName}-`));
+  const appDir = await ensureViewerBuilt();
+  writeFileSync(join(dir, `${runName}.yaml`), scenario);
+  const run = await runScenarioFile(join(dir, `${runName}.yaml`), { out: join(dir, runName), progress: 'none', log: () => {} });
+  expect(run.reason).toBe('end');
+  const a = await startViewServer({ appDir, port: 0 });
+  const b = await startViewServer({ appDir, runDir: join(dir, runName), port: 0 });
+  const browser = await launchChromium();
+  return {
+    browser, appUrl: a.url, runUrl: b.url, dir,
+    async stop() {
+      await browser.close();
+      a.server.close();
+      b.server.close();
+      rmSync(dir, { recursive: true, force: true });
+    },
+  };
 }
